@@ -1,0 +1,34 @@
+import type { UserDto } from '#shared/types/auth'
+import { roleAtLeast, type Role } from '#shared/types/auth'
+
+/** The signed-in person (name and e-mail from /api/me; role from the session). */
+export function useAccount() {
+  const { loggedIn, user, clear, fetch: refreshSession } = useUserSession()
+  const me = useState<UserDto | null>('benchlore-me', () => null)
+  const role = computed<Role | undefined>(() => user.value?.role)
+  const can = (needed: Role) => roleAtLeast(role.value, needed)
+
+  async function loadMe() {
+    if (!loggedIn.value) {
+      me.value = null
+      return
+    }
+    try {
+      const res = await useRequestFetch()('/api/me')
+      me.value = res.user
+    }
+    catch {
+      me.value = null
+      await clear()
+    }
+  }
+
+  async function signOut() {
+    await $fetch('/api/auth/logout', { method: 'POST' }).catch(() => undefined)
+    await clear()
+    me.value = null
+    await navigateTo('/login')
+  }
+
+  return { loggedIn, role, me, can, loadMe, signOut, refreshSession }
+}

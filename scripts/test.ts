@@ -1,0 +1,76 @@
+// `npm test`: the same services as `npm start`, on their own ports and a throw-away data folder
+// (.data-test/, never .data/), a fresh database, then every vitest project. Exit code = result.
+import { spawn, spawnSync } from 'node:child_process'
+import { existsSync, mkdirSync, rmSync } from 'node:fs'
+import { join } from 'node:path'
+import { done, fail, step } from './lib/proc'
+import {
+  ROOT, buildApp, buildIsStale, runScript, stackEnv, startApp, startDatabase, startMailCatcher, startObjectStore,
+  stopApp, stopDatabase, stopMailCatcher, stopObjectStore, testProfile,
+} from './lib/stack'
+
+const startedAt = Date.now()
+const profile = testProfile()
+// A test run needs its own services: an operator's external settings must not leak into it.
+for (const k of Object.keys(process.env)) if (/^NUXT_(DB|S3|SMTP|MAIL)_/.test(k)) delete process.env[k]
+
+async function stopAll() {
+  await Promise.all([stopApp(profile), stopApp(profile, 'app-b')])
+  await Promise.all([stopMailCatcher(profile), stopObjectStore(profile)])
+  await stopDatabase(profile)
+}
+
+function ensureChromium() {
+  if (existsSync('/usr/bin/chromium')) return
+  if (process.getuid?.() !== 0) fail('Chromium is needed for the browser tests: sudo apt-get install chromium')
+  step('browser tests: installing Debian\'s chromium (once)…')
+  const env = { ...process.env, DEBIAN_FRONTEND: 'noninteractive' }
+  spawnSync('apt-get', ['update'], { stdio: 'inherit', env })
+  const r = spawnSync('apt-get', ['install', '-y', '--no-install-recommends', 'chromium'], { stdio: 'inherit', env })
+  if (r.status !== 0) fail('apt-get could not install chromium')
+}
+
+let code = 1
+process.on('SIGINT', () => void stopAll().then(() => process.exit(130)))
+process.on('SIGTERM', () => void stopAll().then(() => process.exit(143)))
+try {
+  await stopAll() // leftovers of an interrupted earlier run
+  rmSync(profile.dataDir, { recursive: true, force: true })
+  mkdirSync(profile.dataDir, { recursive: true })
+  ensureChromium()
+  await Promise.all([startDatabase(profile, { fresh: true }), startObjectStore(profile), startMailCatcher(profile)])
+  step('database: applying migrations to the empty test database…')
+  await runScript(profile, 'scripts/migrate.ts')
+  step('demo workshop: seeding the test database…')
+  await runScript(profile, 'scripts/seed.ts')
+  if (buildIsStale()) await buildApp()
+  else done('app build is up to date')
+  step(`app: starting the test instance on http://127.0.0.1:${profile.ports.app}…`)
+  await startApp(profile)
+  done('test stack ready', startedAt)
+
+  const tmp = join(profile.dataDir, 'tmp')
+  mkdirSync(tmp, { recursive: true })
+  const env = {
+    ...stackEnv(profile),
+    TMPDIR: tmp,
+    BENCHLORE_TEST: '1',
+    BENCHLORE_BASE_URL: `http://127.0.0.1:${profile.ports.app}`,
+    BENCHLORE_ARTIFACTS: join(ROOT, 'test-results'),
+  }
+  const args = ['run', ...process.argv.slice(2)]
+  code = await new Promise<number>((resolve) => {
+    const child = spawn(join(ROOT, 'node_modules', '.bin', 'vitest'), args, { cwd: ROOT, env, stdio: 'inherit' })
+    child.on('exit', c => resolve(c ?? 1))
+  })
+}
+catch (error) {
+  console.error(`✗ ${(error as Error).message}`)
+  code = 1
+}
+finally {
+  step('stopping the test services…')
+  await stopAll()
+  done(`test run finished in ${((Date.now() - startedAt) / 1000).toFixed(0)} s, exit code ${code}`)
+}
+process.exit(code)

@@ -1,0 +1,12 @@
+import { z } from 'zod'
+import { readCapturedMail } from '../../../services/mail-capture'
+
+const Params = z.object({ id: z.string().regex(/^[\w.-]{1,120}$/, 'is not a message id') })
+
+export default defineEventHandler(async (event) => {
+  await requireRole(event, 'admin')
+  const { id } = await getValidatedRouterParams(event, parseWith(Params))
+  const message = await readCapturedMail(useRuntimeConfig().mail.captureDir, id)
+  if (!message) throw createError({ statusCode: 404, message: 'No such message.' })
+  return { message }
+})

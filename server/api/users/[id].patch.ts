@@ -1,0 +1,13 @@
+import { z } from 'zod'
+import { UserPatchBody } from '#shared/types/auth'
+import { toAdminUserDto, updateUser } from '../../services/accounts'
+
+const Params = z.object({ id: z.coerce.number().int().positive() })
+
+export default defineEventHandler(async (event) => {
+  const actor = await requireRole(event, 'admin')
+  const { id } = await getValidatedRouterParams(event, parseWith(Params))
+  const patch = await readValidatedBody(event, parseWith(UserPatchBody))
+  const user = await updateUser(id, patch, actor)
+  return { user: toAdminUserDto(user, false) }
+})

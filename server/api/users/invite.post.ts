@@ -1,0 +1,10 @@
+import { InviteBody } from '#shared/types/auth'
+import { inviteUser, toUserDto } from '../../services/accounts'
+
+export default defineEventHandler(async (event) => {
+  const actor = await requireRole(event, 'admin')
+  const body = await readValidatedBody(event, parseWith(InviteBody))
+  const { user, expiresAt } = await inviteUser(body, actor, useRuntimeConfig().appOrigin)
+  setResponseStatus(event, 201)
+  return { user: toUserDto(user), expiresAt: expiresAt.toISOString() }
+})

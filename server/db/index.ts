@@ -1,0 +1,68 @@
+import * as mariadb from 'mariadb'
+import { Sequelize } from 'sequelize'
+import { initModels } from './models'
+
+export interface DbConfig {
+  host: string
+  port: number
+  name: string
+  user: string
+  password: string
+}
+
+let sequelize: Sequelize | undefined
+
+/** Reads the database settings from the NUXT_DB_* variables (scripts and tests; the app uses runtimeConfig). */
+export function dbConfigFromEnv(env: NodeJS.ProcessEnv = process.env): DbConfig {
+  return {
+    host: env.NUXT_DB_HOST ?? '127.0.0.1',
+    port: Number(env.NUXT_DB_PORT ?? 3307),
+    name: env.NUXT_DB_NAME ?? 'benchlore',
+    user: env.NUXT_DB_USER ?? 'benchlore',
+    password: env.NUXT_DB_PASSWORD ?? '',
+  }
+}
+
+export function createSequelize(cfg: DbConfig): Sequelize {
+  return new Sequelize(cfg.name, cfg.user, cfg.password, {
+    host: cfg.host,
+    port: Number(cfg.port),
+    dialect: 'mariadb',
+    // Passed explicitly: the bundled server lacks the CJS entry Sequelize would require().
+    dialectModule: mariadb,
+    logging: false,
+    timezone: '+00:00',
+    dialectOptions: {
+      timezone: '+00:00',
+      connectTimeout: 2000,
+      // COUNT(*) and BIGINT ids as numbers, so JSON never meets a BigInt.
+      bigIntAsNumber: true,
+      insertIdAsNumber: true,
+      decimalAsNumber: true,
+    },
+    // Fail fast while the database is away (the API answers 503) and recover on its own.
+    pool: { max: 10, min: 0, acquire: 4000, idle: 10_000, evict: 5_000 },
+    retry: { max: 0 },
+    define: { underscored: true },
+  })
+}
+
+/** Opens the one Sequelize instance of this process and binds the models to it. */
+export function initDatabase(cfg: DbConfig): Sequelize {
+  if (sequelize) return sequelize
+  sequelize = createSequelize(cfg)
+  initModels(sequelize)
+  return sequelize
+}
+
+export function useDb(): Sequelize {
+  if (!sequelize) throw new Error('database not initialised: call initDatabase() first')
+  return sequelize
+}
+
+export async function closeDatabase(): Promise<void> {
+  await sequelize?.close()
+  sequelize = undefined
+}
+
+export * from './models'

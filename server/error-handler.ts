@@ -1,0 +1,47 @@
+import type { NitroErrorHandler } from 'nitropack/types'
+import { getRequestURL, send, setResponseHeader, setResponseStatus } from 'h3'
+
+const DB_DOWN = /Sequelize(Connection|ConnectionRefused|ConnectionAcquireTimeout|HostNotReachable|ConnectionTimedOut|AccessDenied)Error|ECONNREFUSED|ER_GET_CONNECTION_TIMEOUT|ER_CONNECTION_TIMEOUT|Connection (?:closed|timeout)|socket has unexpectedly been closed/i
+
+function unavailableCause(error: unknown): string | null {
+  let e: unknown = error
+  for (let depth = 0; e && depth < 5; depth++) {
+    const err = e as { name?: string, message?: string, code?: string, cause?: unknown, original?: unknown }
+    const text = `${err.name ?? ''} ${err.code ?? ''} ${err.message ?? ''}`
+    if (DB_DOWN.test(text)) return 'database'
+    if (err.name === 'ObjectStoreUnavailable') return 'object store'
+    e = err.cause ?? err.original
+  }
+  return null
+}
+
+/**
+ * API errors are JSON `{ statusCode, statusMessage, message, data }`. An unreachable dependency
+ * is a 503 that names it; an unexpected error is a 500 without internals. Pages fall through to
+ * Nuxt's own error page.
+ */
+const handler: NitroErrorHandler = async (error, event) => {
+  const url = getRequestURL(event)
+  if (!url.pathname.startsWith('/api/') && url.pathname !== '/api') return
+  const down = unavailableCause(error)
+  let statusCode = error.statusCode ?? 500
+  let message = error.message
+  let statusMessage = error.statusMessage
+  if (down) {
+    statusCode = 503
+    statusMessage = 'Service Unavailable'
+    message = `The ${down} is not reachable right now; try again in a moment.`
+  }
+  else if (statusCode >= 500 && error.unhandled) {
+    console.error('[benchlore] unhandled error on', event.method, url.pathname, error.cause ?? error)
+    message = 'Something went wrong on the server; the error was logged.'
+  }
+  const data = statusCode < 500 || down ? error.data : undefined
+  setResponseStatus(event, statusCode, statusMessage)
+  setResponseHeader(event, 'Content-Type', 'application/json; charset=utf-8')
+  setResponseHeader(event, 'Cache-Control', 'no-store')
+  if (down) setResponseHeader(event, 'Retry-After', '5')
+  return send(event, JSON.stringify({ statusCode, statusMessage, message, data }))
+}
+
+export default handler

@@ -1,0 +1,103 @@
+import nodemailer, { type Transporter } from 'nodemailer'
+import { Op, type Transaction } from 'sequelize'
+import { OutboxMessage, useDb } from '../db'
+
+export interface SmtpConfig {
+  host: string
+  port: number
+  secure: boolean
+  user?: string
+  password?: string
+}
+
+export interface OutgoingMail {
+  kind: string
+  to: string
+  subject: string
+  text: string
+}
+
+/**
+ * Queues mail in the outbox inside the caller's transaction: the change and its mail commit
+ * together, and the worker sends it afterwards (transactional outbox).
+ */
+export async function queueMail(mail: OutgoingMail | OutgoingMail[], transaction?: Transaction): Promise<void> {
+  const list = Array.isArray(mail) ? mail : [mail]
+  if (!list.length) return
+  await OutboxMessage.bulkCreate(list.map(m => ({
+    kind: m.kind,
+    toAddress: m.to,
+    subject: m.subject.slice(0, 250),
+    textBody: m.text,
+    lastError: null,
+    sentAt: null,
+    lockedUntil: null,
+  })), { transaction })
+}
+
+export function createTransport(cfg: SmtpConfig): Transporter {
+  const local = cfg.host === '127.0.0.1' || cfg.host === 'localhost'
+  return nodemailer.createTransport({
+    host: cfg.host,
+    port: Number(cfg.port),
+    secure: Boolean(cfg.secure),
+    // The local catcher speaks plain SMTP; a real relay negotiates STARTTLS as usual.
+    ignoreTLS: local && !cfg.secure,
+    auth: cfg.user ? { user: cfg.user, pass: cfg.password ?? '' } : undefined,
+    connectionTimeout: 3000,
+    greetingTimeout: 3000,
+    socketTimeout: 10_000,
+  })
+}
+
+/** Backoff after the n-th failed attempt: base·2^(n−1), capped at five minutes. */
+export function retryDelayMs(attempts: number, baseMs: number): number {
+  return Math.min(baseMs * 2 ** Math.max(0, attempts - 1), 5 * 60_000)
+}
+
+/**
+ * Sends what is due. Rows are claimed with SELECT … FOR UPDATE SKIP LOCKED and a lease, so
+ * several app instances can run the worker without sending a message twice.
+ */
+export async function deliverDueMail(transport: Transporter, opts: { from: string, retryBaseMs: number, batch?: number }): Promise<{ sent: number, failed: number }> {
+  const sequelize = useDb()
+  const now = new Date()
+  const claimed = await sequelize.transaction(async (transaction) => {
+    const rows = await OutboxMessage.findAll({
+      where: {
+        status: 'pending',
+        nextAttemptAt: { [Op.lte]: now },
+        [Op.or]: [{ lockedUntil: null }, { lockedUntil: { [Op.lt]: now } }],
+      },
+      order: [['id', 'ASC']],
+      limit: opts.batch ?? 20,
+      lock: transaction.LOCK.UPDATE,
+      skipLocked: true,
+      transaction,
+    })
+    if (rows.length) {
+      await OutboxMessage.update({ lockedUntil: new Date(now.getTime() + 60_000) }, { where: { id: rows.map(r => r.id) }, transaction })
+    }
+    return rows
+  })
+  let sent = 0
+  let failed = 0
+  for (const row of claimed) {
+    try {
+      await transport.sendMail({ from: opts.from, to: row.toAddress, subject: row.subject, text: row.textBody, headers: { 'X-Benchlore-Kind': row.kind } })
+      await row.update({ status: 'sent', sentAt: new Date(), lockedUntil: null, attempts: row.attempts + 1, lastError: null })
+      sent++
+    }
+    catch (error) {
+      const attempts = row.attempts + 1
+      await row.update({
+        attempts,
+        lockedUntil: null,
+        lastError: String((error as Error).message ?? error).slice(0, 500),
+        nextAttemptAt: new Date(Date.now() + retryDelayMs(attempts, opts.retryBaseMs)),
+      })
+      failed++
+    }
+  }
+  return { sent, failed }
+}

@@ -1,0 +1,40 @@
+import type { H3Event } from 'h3'
+import { roleAtLeast, ROLE_LABELS, type Role } from '#shared/types/auth'
+import { User } from '../db'
+
+/**
+ * The signed-in user, loaded fresh from the database on every request. The sealed cookie
+ * carries id, role and the session version it was issued under; a deactivated user or a bumped
+ * version (sign-out, role change, deactivation) ends the session here, at the next request.
+ */
+export async function requireUser(event: H3Event): Promise<User> {
+  const cached = event.context.benchloreUser as User | undefined
+  if (cached) return cached
+  const session = await getUserSession(event)
+  const claim = session.user
+  if (!claim?.id) throw createError({ statusCode: 401, message: 'Sign in to continue.' })
+  const user = await User.findByPk(claim.id)
+  if (!user || !user.active || user.sessionVersion !== claim.sv) {
+    await clearUserSession(event)
+    throw createError({ statusCode: 401, message: 'Your session has ended. Sign in again.' })
+  }
+  event.context.benchloreUser = user
+  return user
+}
+
+/** Every protected route calls this (roles include the ones below them). */
+export async function requireRole(event: H3Event, role: Role): Promise<User> {
+  const user = await requireUser(event)
+  if (!roleAtLeast(user.role, role)) {
+    throw createError({ statusCode: 403, message: `This needs the ${ROLE_LABELS[role].toLowerCase()} role or above.` })
+  }
+  return user
+}
+
+export async function startSession(event: H3Event, user: User): Promise<void> {
+  await replaceUserSession(event, { user: { id: user.id, role: user.role, sv: user.sessionVersion }, loggedInAt: Date.now() })
+}
+
+export function clientIp(event: H3Event): string {
+  return getRequestIP(event, { xForwardedFor: useRuntimeConfig().trustProxy === true }) ?? 'unknown'
+}

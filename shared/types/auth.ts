@@ -1,0 +1,62 @@
+import { z } from 'zod'
+
+/** Roles in ascending order: each includes every role before it. */
+export const ROLES = ['technician', 'author', 'editor', 'admin'] as const
+export type Role = (typeof ROLES)[number]
+
+export const ROLE_LABELS: Record<Role, string> = {
+  technician: 'Technician',
+  author: 'Author',
+  editor: 'Editor',
+  admin: 'Admin',
+}
+
+export function roleAtLeast(role: Role | undefined | null, needed: Role): boolean {
+  if (!role) return false
+  return ROLES.indexOf(role) >= ROLES.indexOf(needed)
+}
+
+export const PASSWORD_MIN = 12
+
+export const Email = z.string().trim().toLowerCase().max(254).email('must be an e-mail address')
+export const Password = z.string().min(PASSWORD_MIN, `must be at least ${PASSWORD_MIN} characters`).max(200, 'must be at most 200 characters')
+
+export const LoginBody = z.object({
+  email: Email,
+  // Length rules are not checked at sign-in: a wrong password of any length is just wrong.
+  password: z.string().min(1, 'is required').max(200),
+})
+
+export const InviteBody = z.object({
+  email: Email,
+  role: z.enum(ROLES),
+  name: z.string().trim().max(120).optional(),
+})
+
+export const AcceptInviteBody = z.object({
+  token: z.string().min(20).max(200),
+  name: z.string().trim().min(2, 'must be at least 2 characters').max(120),
+  password: Password,
+})
+
+export const UserPatchBody = z
+  .object({
+    role: z.enum(ROLES).optional(),
+    active: z.boolean().optional(),
+    name: z.string().trim().min(2).max(120).optional(),
+  })
+  .refine(b => b.role !== undefined || b.active !== undefined || b.name !== undefined, { message: 'nothing to change: give role, active or name' })
+
+export interface UserDto {
+  id: number
+  email: string
+  name: string
+  role: Role
+}
+
+export interface AdminUserDto extends UserDto {
+  active: boolean
+  lastLoginAt: string | null
+  createdAt: string
+  invitationPending: boolean
+}

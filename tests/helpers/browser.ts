@@ -1,0 +1,42 @@
+import { mkdirSync, mkdtempSync, rmSync } from 'node:fs'
+import { tmpdir } from 'node:os'
+import { join } from 'node:path'
+import { chromium, type BrowserContext, type Page } from 'playwright-core'
+
+export const BASE_URL = process.env.BENCHLORE_BASE_URL ?? 'http://127.0.0.1:3000'
+export const ARTIFACTS = process.env.BENCHLORE_ARTIFACTS ?? join(process.cwd(), 'test-results')
+
+/** Debian's Chromium, headless, with the flags this closed network needs. */
+export async function openBrowser(opts: { width?: number, height?: number } = {}): Promise<{ context: BrowserContext, page: Page, close: () => Promise<void> }> {
+  const profile = mkdtempSync(join(tmpdir(), 'benchlore-chromium-'))
+  const context = await chromium.launchPersistentContext(profile, {
+    executablePath: process.env.CHROMIUM_PATH ?? '/usr/bin/chromium',
+    headless: true,
+    viewport: { width: opts.width ?? 1280, height: opts.height ?? 860 },
+    args: ['--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync', '--disable-dev-shm-usage'],
+  })
+  const page = context.pages()[0] ?? await context.newPage()
+  return {
+    context,
+    page,
+    close: async () => {
+      await context.close()
+      rmSync(profile, { recursive: true, force: true })
+    },
+  }
+}
+
+export async function screenshot(page: Page, name: string): Promise<string> {
+  mkdirSync(ARTIFACTS, { recursive: true })
+  const file = join(ARTIFACTS, `${name}.png`)
+  await page.screenshot({ path: file, fullPage: true })
+  return file
+}
+
+export async function signIn(page: Page, email: string, password: string): Promise<void> {
+  await page.goto(`${BASE_URL}/login`)
+  await page.getByTestId('login-email').fill(email)
+  await page.getByTestId('login-password').fill(password)
+  await page.getByTestId('login-submit').click()
+  await page.waitForURL(url => !url.pathname.startsWith('/login'), { timeout: 15_000 })
+}
