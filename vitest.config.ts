@@ -11,6 +11,10 @@ const alias = {
 export default defineConfig({
   resolve: { alias },
   test: {
+    // One file at a time: API and browser tests share one app and one database, and some of
+    // them stop services or change the demo accounts on purpose.
+    fileParallelism: false,
+    maxWorkers: 1,
     projects: [
       {
         resolve: { alias },

@@ -30,6 +30,9 @@ function ensureChromium() {
   if (r.status !== 0) fail('apt-get could not install chromium')
 }
 
+// Faster mail retries and polling than production, so outage tests finish in seconds.
+const TEST_APP_ENV = { NUXT_MAIL_POLL_MS: '500', NUXT_MAIL_RETRY_BASE_MS: '1000' }
+
 let code = 1
 process.on('SIGINT', () => void stopAll().then(() => process.exit(130)))
 process.on('SIGTERM', () => void stopAll().then(() => process.exit(143)))
@@ -46,7 +49,7 @@ try {
   if (buildIsStale()) await buildApp()
   else done('app build is up to date')
   step(`app: starting the test instance on http://127.0.0.1:${profile.ports.app}…`)
-  await startApp(profile)
+  await startApp(profile, { env: TEST_APP_ENV })
   done('test stack ready', startedAt)
 
   const tmp = join(profile.dataDir, 'tmp')
@@ -57,6 +60,7 @@ try {
     BENCHLORE_TEST: '1',
     BENCHLORE_BASE_URL: `http://127.0.0.1:${profile.ports.app}`,
     BENCHLORE_ARTIFACTS: join(ROOT, 'test-results'),
+    ...TEST_APP_ENV,
   }
   const args = ['run', ...process.argv.slice(2)]
   code = await new Promise<number>((resolve) => {

@@ -40,7 +40,7 @@ const handler: NitroErrorHandler = async (error, event) => {
   setResponseStatus(event, statusCode, statusMessage)
   setResponseHeader(event, 'Content-Type', 'application/json; charset=utf-8')
   setResponseHeader(event, 'Cache-Control', 'no-store')
-  if (down) setResponseHeader(event, 'Retry-After', '5')
+  if (down) setResponseHeader(event, 'Retry-After', 5)
   return send(event, JSON.stringify({ statusCode, statusMessage, message, data }))
 }
 

@@ -38,10 +38,13 @@ export function testProfile(): StackProfile {
 
 /** Which services are external (configured by the operator through env vars) and so not started. */
 export function externalServices() {
+  // Services a stack started itself are marked in the environment it hands to its children
+  // (tests, scripts), so that they are not mistaken for an operator's external ones.
+  const own = (process.env.BENCHLORE_OWN_SERVICES ?? '').split(',')
   return {
-    db: Boolean(process.env.NUXT_DB_HOST),
-    s3: Boolean(process.env.NUXT_S3_ENDPOINT),
-    smtp: Boolean(process.env.NUXT_SMTP_HOST),
+    db: Boolean(process.env.NUXT_DB_HOST) && !own.includes('db'),
+    s3: Boolean(process.env.NUXT_S3_ENDPOINT) && !own.includes('s3'),
+    smtp: Boolean(process.env.NUXT_SMTP_HOST) && !own.includes('smtp'),
   }
 }
 
@@ -97,6 +100,7 @@ export function stackEnv(profile: StackProfile): NodeJS.ProcessEnv {
     if (group && ext[group]) continue
     if (env[k] === undefined || env[k] === '') env[k] = v
   }
+  env.BENCHLORE_OWN_SERVICES = (['db', 's3', 'smtp'] as const).filter(k => !ext[k]).join(',')
   env.NITRO_HOST = '127.0.0.1'
   env.NITRO_PORT = String(profile.ports.app)
   env.PORT = String(profile.ports.app)

@@ -85,17 +85,19 @@ export async function deliverDueMail(transport: Transporter, opts: { from: strin
   for (const row of claimed) {
     try {
       await transport.sendMail({ from: opts.from, to: row.toAddress, subject: row.subject, text: row.textBody, headers: { 'X-Benchlore-Kind': row.kind } })
-      await row.update({ status: 'sent', sentAt: new Date(), lockedUntil: null, attempts: row.attempts + 1, lastError: null })
+      // Static updates: the instances were loaded before the lease was written, so an instance
+      // update would not see lockedUntil as changed and would leave the lease in place.
+      await OutboxMessage.update({ status: 'sent', sentAt: new Date(), lockedUntil: null, attempts: row.attempts + 1, lastError: null }, { where: { id: row.id } })
       sent++
     }
     catch (error) {
       const attempts = row.attempts + 1
-      await row.update({
+      await OutboxMessage.update({
         attempts,
         lockedUntil: null,
         lastError: String((error as Error).message ?? error).slice(0, 500),
         nextAttemptAt: new Date(Date.now() + retryDelayMs(attempts, opts.retryBaseMs)),
-      })
+      }, { where: { id: row.id } })
       failed++
     }
   }

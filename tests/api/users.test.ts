@@ -1,0 +1,105 @@
+import { randomBytes } from 'node:crypto'
+import { describe, expect, it } from 'vitest'
+import { Invitation, User } from '../../server/db'
+import { ApiClient, DEMO, signedIn } from '../helpers/api'
+import { makeUser, testDb } from '../helpers/db'
+import { services, waitForMail } from '../helpers/stack'
+
+const linkIn = (text: string) => text.match(/https?:\/\/\S+\/invite\/([\w-]+)/)
+
+describe('invitations', () => {
+  it('invites by e-mail; the invitee follows the link, sets a password and is signed in', async () => {
+    const admin = await signedIn(DEMO.admin)
+    const email = `invitee-${randomBytes(3).toString('hex')}@test.example`
+    const sent = await admin.post('/api/users/invite', { email, role: 'author' })
+    expect(sent.status).toBe(201)
+
+    const mail = await waitForMail(m => m.to.includes(email))
+    expect(mail.subject).toMatch(/invited you to Benchlore/)
+    const token = linkIn(mail.text)?.[1]
+    expect(token).toBeTruthy()
+
+    const anon = new ApiClient()
+    const view = await anon.get(`/api/invitations/${token}`)
+    expect(view.body).toMatchObject({ status: 'valid', email, role: 'author' })
+
+    const short = await anon.post('/api/invitations/accept', { token, name: 'New Author', password: 'short' })
+    expect(short.status).toBe(400)
+    expect(short.body.data.fields).toHaveProperty('password')
+
+    const done = await anon.post('/api/invitations/accept', { token, name: 'New Author', password: 'a-long-enough-passphrase' })
+    expect(done.status).toBe(200)
+    expect((await anon.get('/api/me')).body.user).toMatchObject({ email, role: 'author', name: 'New Author' })
+    expect((await new ApiClient().post('/api/auth/login', { email, password: 'a-long-enough-passphrase' })).status).toBe(200)
+
+    const reused = await new ApiClient().post('/api/invitations/accept', { token, name: 'Someone Else', password: 'another-long-passphrase' })
+    expect(reused.status).toBe(410)
+    expect((await new ApiClient().get(`/api/invitations/${token}`)).body.status).toBe('used')
+
+    const again = await admin.post('/api/users/invite', { email, role: 'technician' })
+    expect(again.status).toBe(409)
+  })
+
+  it('an expired link says so and cannot be used', async () => {
+    const admin = await signedIn(DEMO.admin)
+    const email = `late-${randomBytes(3).toString('hex')}@test.example`
+    expect((await admin.post('/api/users/invite', { email, role: 'technician' })).status).toBe(201)
+    const mail = await waitForMail(m => m.to.includes(email))
+    const token = linkIn(mail.text)![1]!
+    testDb()
+    const user = await User.findOne({ where: { email } })
+    await Invitation.update({ expiresAt: new Date(Date.now() - 1000) }, { where: { userId: user!.id } })
+    expect((await new ApiClient().get(`/api/invitations/${token}`)).body.status).toBe('expired')
+    expect((await new ApiClient().post('/api/invitations/accept', { token, name: 'Too Late', password: 'a-long-enough-passphrase' })).status).toBe(410)
+  })
+
+  it('keeps the invitation mail while SMTP is down and delivers it after recovery (outbox)', async () => {
+    const admin = await signedIn(DEMO.admin)
+    const email = `outage-${randomBytes(3).toString('hex')}@test.example`
+    await services.stopMail()
+    try {
+      expect((await admin.post('/api/users/invite', { email, role: 'technician' })).status).toBe(201)
+      await new Promise(r => setTimeout(r, 2500))
+    }
+    finally {
+      await services.startMail()
+    }
+    const mail = await waitForMail(m => m.to.includes(email), 30_000)
+    expect(linkIn(mail.text)).toBeTruthy()
+  })
+})
+
+describe('user administration', () => {
+  it('lists users for admins only', async () => {
+    const res = await (await signedIn(DEMO.admin)).get('/api/users')
+    expect(res.status).toBe(200)
+    expect(res.body.data.map((u: { email: string }) => u.email)).toContain(DEMO.editor)
+    expect(res.body.data[0]).not.toHaveProperty('passwordHash')
+  })
+
+  it('never demotes or deactivates the last active admin', async () => {
+    const admin = await signedIn(DEMO.admin)
+    const me = (await admin.get('/api/me')).body.user
+    testDb()
+    const otherAdmins = await User.count({ where: { role: 'admin', active: true } })
+    expect(otherAdmins, 'the demo admin is the only active admin at this point').toBe(1)
+    const demote = await admin.patch(`/api/users/${me.id}`, { role: 'editor' })
+    expect(demote.status).toBe(409)
+    expect(demote.body.message).toMatch(/at least one active admin/)
+    expect((await admin.patch(`/api/users/${me.id}`, { active: false })).status).toBe(409)
+
+    const second = await makeUser({ role: 'admin' })
+    expect((await admin.patch(`/api/users/${me.id}`, { role: 'editor' })).status).toBe(200)
+    const secondClient = await new ApiClient().login(second.email, 'factory-password-123')
+    expect((await secondClient.patch(`/api/users/${second.id}`, { active: false })).status).toBe(409)
+    expect((await secondClient.patch(`/api/users/${me.id}`, { role: 'admin' })).status).toBe(200)
+    expect((await (await signedIn(DEMO.admin)).patch(`/api/users/${second.id}`, { active: false })).status).toBe(200)
+  })
+
+  it('answers 404 for an unknown user and 400 for an empty change', async () => {
+    const admin = await signedIn(DEMO.admin)
+    expect((await admin.patch('/api/users/987654', { role: 'editor' })).status).toBe(404)
+    const empty = await admin.patch('/api/users/1', {})
+    expect(empty.status).toBe(400)
+  })
+})
