@@ -4,6 +4,8 @@ import { fileURLToPath } from 'node:url'
 // (README.md, "Configuration"). The built server reads no .env file.
 export default defineNuxtConfig({
   compatibilityDate: '2026-11-01',
+  // A separate build folder lets two dev servers run side by side (BENCHLORE_BUILD_DIR=.nuxt-b).
+  buildDir: process.env.BENCHLORE_BUILD_DIR || '.nuxt',
   devtools: { enabled: false },
   telemetry: false,
   modules: ['@nuxtjs/tailwindcss', '@pinia/nuxt', 'nuxt-auth-utils'],

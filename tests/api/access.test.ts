@@ -19,10 +19,38 @@ export const ROUTE_ACCESS: Record<string, Access> = {
   'POST /api/invitations/accept': 'public',
   'GET /api/admin/mail': 'admin',
   'GET /api/admin/mail/:id': 'admin',
+  'GET /api/procedures': 'technician',
+  'POST /api/procedures': 'author',
+  'GET /api/procedures/:slug': 'technician',
+  'GET /api/procedures/:slug/revisions': 'technician',
+  'POST /api/procedures/:slug/revisions': 'author',
+  'POST /api/procedures/:slug/retire': 'editor',
+  'GET /api/revisions': 'author',
+  'GET /api/revisions/:id': 'technician',
+  'PUT /api/revisions/:id': 'author',
+  'POST /api/revisions/:id/submit': 'author',
+  'POST /api/revisions/:id/approve': 'editor',
+  'POST /api/revisions/:id/request-changes': 'editor',
+  'POST /api/revisions/:id/reject': 'editor',
+  'POST /api/revisions/:id/comments': 'author',
+  'GET /api/revisions/:id/compare/:other': 'technician',
+  'PATCH /api/review-comments/:id': 'author',
+  'POST /api/uploads': 'technician',
+  'PATCH /api/uploads/:id': 'technician',
+  'GET /api/files/:id': 'technician',
+  'GET /api/symptoms': 'technician',
+  'POST /api/symptoms': 'editor',
+  'POST /api/symptoms/propose': 'author',
+  'PATCH /api/symptoms/:id': 'editor',
+  'POST /api/symptoms/:id/accept': 'editor',
+  'POST /api/symptoms/:id/merge': 'editor',
+  'GET /api/device-types': 'technician',
+  'POST /api/device-types': 'editor',
+  'PATCH /api/device-types/:id': 'editor',
 }
 
 // Placeholder values: the route only has to get past authorisation (a 400/404 after that is fine).
-const fill = (path: string) => path.replace(/:(\w+)/g, (_, name: string) => (name === 'token' ? 'x'.repeat(40) : name === 'id' ? '999999' : 'placeholder'))
+const fill = (path: string) => path.replace(/:(\w+)/g, (_, name: string) => (name === 'token' ? 'x'.repeat(40) : name === 'id' || name === 'other' ? '999999' : 'placeholder'))
 
 const clients: Partial<Record<Role | 'anonymous', ApiClient>> = {}
 beforeAll(async () => {

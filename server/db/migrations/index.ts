@@ -1,5 +1,7 @@
 import type { QueryInterface } from 'sequelize'
 import * as m0001 from './0001-foundation'
+import * as m0002 from './0002-procedures'
+import * as m0003 from './0003-change-log'
 
 export interface Migration {
   name: string
@@ -10,4 +12,6 @@ export interface Migration {
 /** Every migration, in order. Add new ones at the end; never edit one that has shipped. */
 export const MIGRATIONS: Migration[] = [
   { name: '0001-foundation', ...m0001 },
+  { name: '0002-procedures', ...m0002 },
+  { name: '0003-change-log', ...m0003 },
 ]

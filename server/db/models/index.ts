@@ -1,20 +1,32 @@
 import type { Sequelize } from 'sequelize'
+import { Attachment } from './attachment'
 import { AuditEvent } from './audit-event'
+import { ChangeLogEntry } from './change-log-entry'
+import { DeviceType } from './device-type'
 import { Invitation } from './invitation'
 import { LoginFailure } from './login-failure'
 import { OutboxMessage } from './outbox-message'
+import { Procedure } from './procedure'
+import { ReviewComment } from './review-comment'
+import { Revision } from './revision'
+import { Symptom } from './symptom'
 import { User } from './user'
 
-export { AuditEvent, Invitation, LoginFailure, OutboxMessage, User }
+export { Attachment, AuditEvent, ChangeLogEntry, DeviceType, Invitation, LoginFailure, OutboxMessage, Procedure, ReviewComment, Revision, Symptom, User }
 
 /** Binds every model to the connection and declares the associations (once per process). */
 export function initModels(sequelize: Sequelize) {
-  User.initModel(sequelize)
-  Invitation.initModel(sequelize)
-  LoginFailure.initModel(sequelize)
-  AuditEvent.initModel(sequelize)
-  OutboxMessage.initModel(sequelize)
+  for (const model of [ChangeLogEntry, User, Invitation, LoginFailure, AuditEvent, OutboxMessage, DeviceType, Symptom, Procedure, Revision, ReviewComment, Attachment]) {
+    model.initModel(sequelize)
+  }
 
   Invitation.belongsTo(User, { as: 'user', foreignKey: 'userId' })
   User.hasMany(Invitation, { as: 'invitations', foreignKey: 'userId' })
+
+  Procedure.hasMany(Revision, { as: 'revisions', foreignKey: 'procedureId' })
+  Revision.belongsTo(Procedure, { as: 'procedure', foreignKey: 'procedureId' })
+  Revision.belongsTo(User, { as: 'author', foreignKey: 'authorId' })
+  Revision.belongsTo(User, { as: 'reviewer', foreignKey: 'reviewerId' })
+  Revision.hasMany(ReviewComment, { as: 'comments', foreignKey: 'revisionId' })
+  ReviewComment.belongsTo(User, { as: 'author', foreignKey: 'authorId' })
 }

@@ -1,10 +1,15 @@
+import type { ObjectStore } from '../../services/storage'
+import type { DemoPerson } from './demo-content'
+import { seedProcedures, seedVocabulary } from './procedures'
 import { seedDemoUsers } from './users'
 
 /**
  * Seeds the demo workshop ("Harbour Lane Repair Co-op", invented). Idempotent: what exists is
  * left as it is, so a second `npm start` keeps every change made through the app.
  */
-export async function seedDemo(): Promise<{ users: number }> {
+export async function seedDemo(store: ObjectStore): Promise<Record<string, number>> {
   const users = await seedDemoUsers()
-  return { users: Object.keys(users).length }
+  await seedVocabulary()
+  const procedures = await seedProcedures(users as Record<DemoPerson, (typeof users)[string]>, store)
+  return { users: Object.keys(users).length, 'new procedures': procedures }
 }

@@ -1,0 +1,10 @@
+import { z } from 'zod'
+import { readPublished } from '../../../services/procedures'
+
+const Params = z.object({ slug: z.string().min(1).max(100) })
+
+export default defineEventHandler(async (event) => {
+  const user = await requireUser(event)
+  const { slug } = await getValidatedRouterParams(event, parseWith(Params))
+  return await readPublished(slug, user)
+})

@@ -1,0 +1,15 @@
+import { z } from 'zod'
+import { listPublished } from '../../services/procedures'
+
+const Query = z.object({
+  deviceType: z.string().trim().max(80).optional(),
+  symptom: z.string().trim().max(80).optional(),
+  page: z.coerce.number().int().min(1).max(10_000).default(1),
+  pageSize: z.coerce.number().int().min(1).max(100).default(20),
+})
+
+export default defineEventHandler(async (event) => {
+  await requireUser(event)
+  const query = await getValidatedQuery(event, parseWith(Query))
+  return await listPublished(query)
+})

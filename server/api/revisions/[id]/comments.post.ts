@@ -1,0 +1,14 @@
+import { z } from 'zod'
+import { CommentBody } from '#shared/types/procedure'
+import { addComment } from '../../../services/procedures'
+
+const Params = z.object({ id: z.coerce.number().int().positive() })
+
+export default defineEventHandler(async (event) => {
+  const actor = await requireRole(event, 'author')
+  const { id } = await getValidatedRouterParams(event, parseWith(Params))
+  const body = await readValidatedBody(event, parseWith(CommentBody))
+  const comment = await addComment(id, body, actor)
+  setResponseStatus(event, 201)
+  return { comment }
+})

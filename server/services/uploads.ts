@@ -1,0 +1,73 @@
+import { createHash, randomUUID } from 'node:crypto'
+import { createError } from 'h3'
+import sharp from 'sharp'
+import { Attachment, User } from '../db'
+import { ObjectStoreUnavailable, type ObjectStore } from './storage'
+import { toAttachmentDto } from './procedures'
+
+export const MAX_IMAGE_BYTES = 15 * 1024 * 1024
+export const THUMB_PX = 480
+
+type ImageType = 'jpeg' | 'png' | 'webp'
+const MIME: Record<ImageType, string> = { jpeg: 'image/jpeg', png: 'image/png', webp: 'image/webp' }
+
+/** The type is decided by the file's first bytes, never by its name or declared type. */
+export function sniffImage(buf: Buffer): ImageType | null {
+  if (buf.length >= 3 && buf[0] === 0xFF && buf[1] === 0xD8 && buf[2] === 0xFF) return 'jpeg'
+  if (buf.length >= 8 && buf.subarray(0, 8).equals(Buffer.from([0x89, 0x50, 0x4E, 0x47, 0x0D, 0x0A, 0x1A, 0x0A]))) return 'png'
+  if (buf.length >= 12 && buf.toString('latin1', 0, 4) === 'RIFF' && buf.toString('latin1', 8, 12) === 'WEBP') return 'webp'
+  return null
+}
+
+/**
+ * Stores a bench photo: checks size and magic bytes, decodes it fully with sharp (a polyglot or
+ * truncated file fails here), re-encodes it so EXIF and GPS are gone (orientation applied first),
+ * makes a thumbnail, writes both objects, and only then the row. A failed store leaves no row
+ * and no object.
+ */
+export async function storeImage(file: { data: Buffer, filename?: string }, actor: User, store: ObjectStore) {
+  if (!file.data.length) throw createError({ statusCode: 422, message: 'The file is empty.', data: { fields: { file: 'is empty' } } })
+  if (file.data.length > MAX_IMAGE_BYTES) throw createError({ statusCode: 413, message: `The file is larger than ${MAX_IMAGE_BYTES / 1024 / 1024} MB.`, data: { fields: { file: 'too large' } } })
+  const type = sniffImage(file.data)
+  if (!type) throw createError({ statusCode: 415, message: 'Only JPEG, PNG and WebP photos can be uploaded (checked from the file\'s content).', data: { fields: { file: 'not a JPEG, PNG or WebP image' } } })
+  let full: { data: Buffer, info: sharp.OutputInfo }
+  let thumb: Buffer
+  try {
+    const base = sharp(file.data, { failOn: 'error', limitInputPixels: 80_000_000 }).rotate()
+    const encoded = type === 'jpeg' ? base.clone().jpeg({ quality: 86, mozjpeg: true }) : type === 'png' ? base.clone().png() : base.clone().webp({ quality: 86 })
+    full = await encoded.toBuffer({ resolveWithObject: true })
+    thumb = await base.clone().resize({ width: THUMB_PX, height: THUMB_PX, fit: 'inside', withoutEnlargement: true }).jpeg({ quality: 80 }).toBuffer()
+  }
+  catch {
+    throw createError({ statusCode: 422, message: 'The image could not be read: it is damaged or not really an image.', data: { fields: { file: 'unreadable image' } } })
+  }
+  const id = randomUUID()
+  const objectKey = `images/${id}.${type === 'jpeg' ? 'jpg' : type}`
+  const thumbnailKey = `images/${id}-thumb.jpg`
+  try {
+    await store.put(objectKey, full.data, MIME[type])
+    await store.put(thumbnailKey, thumb, 'image/jpeg')
+  }
+  catch (error) {
+    await store.delete(objectKey)
+    throw error instanceof ObjectStoreUnavailable ? error : new ObjectStoreUnavailable(String(error))
+  }
+  try {
+    const row = await Attachment.create({
+      objectKey,
+      thumbnailKey,
+      kind: 'image',
+      mime: MIME[type],
+      bytes: full.data.length,
+      width: full.info.width,
+      height: full.info.height,
+      sha256: createHash('sha256').update(full.data).digest('hex'),
+      uploadedById: actor.id,
+    })
+    return toAttachmentDto(row)
+  }
+  catch (error) {
+    await Promise.all([store.delete(objectKey), store.delete(thumbnailKey)])
+    throw error
+  }
+}

@@ -1,0 +1,133 @@
+import type { ProcedureStatus, RevisionContent, RevisionState } from './procedure'
+
+/** A person as other people see them in procedures and reviews. */
+export interface PersonDto { id: number, name: string }
+
+export interface DeviceTypeDto { id: number, slug: string, name: string, description: string }
+export type SymptomStatus = 'accepted' | 'proposed' | 'merged'
+export interface SymptomDto {
+  id: number
+  slug: string
+  name: string
+  description: string
+  synonyms: string[]
+  status: SymptomStatus
+  /** For a merged symptom: the slug it now stands for. */
+  mergedInto?: string | null
+}
+
+/** Sanitised HTML of every Markdown field of a revision, rendered on the server. */
+export interface RenderedContent {
+  summary: string
+  fix: string
+  verification: string
+  causes: Record<string, string>
+  steps: Record<string, string>
+}
+
+export interface AttachmentDto {
+  id: number
+  url: string
+  thumbnailUrl: string
+  width: number
+  height: number
+  mime: string
+  bytes: number
+  caption: string
+}
+
+export interface ReviewCommentDto {
+  id: number
+  author: PersonDto
+  body: string
+  stepKey: string | null
+  resolved: boolean
+  createdAt: string
+}
+
+export interface RevisionSummaryDto {
+  id: number
+  procedureId: number
+  procedureSlug: string
+  /** Null while a draft: numbers are assigned at submission. */
+  number: number | null
+  state: RevisionState
+  title: string
+  author: PersonDto
+  reviewer: PersonDto | null
+  changeNote: string
+  baseRevisionId: number | null
+  /** Draft save counter, sent back with PUT to detect a stale editor. */
+  version: number
+  createdAt: string
+  updatedAt: string
+  submittedAt: string | null
+  decidedAt: string | null
+  publishedAt: string | null
+}
+
+export interface RevisionDetailDto extends RevisionSummaryDto {
+  /** Drafts may be incomplete; submitted revisions always pass RevisionContent. */
+  content: RevisionContent
+  rendered: RenderedContent
+  comments: ReviewCommentDto[]
+  /** Images referenced by the steps, by id. */
+  attachments: Record<string, AttachmentDto>
+  /** Device type and symptom names for the slugs in content. */
+  labels: { deviceType: DeviceTypeDto | null, symptoms: SymptomDto[] }
+  procedure: { id: number, slug: string, status: ProcedureStatus, publishedRevisionId: number | null }
+  /** What the caller may do with this revision now (the server checks again). */
+  can: { edit: boolean, submit: boolean, review: boolean, comment: boolean, startDraft: boolean }
+}
+
+/** GET /api/procedures/[slug] */
+export interface ProcedureReadDto {
+  procedure: { id: number, slug: string, status: ProcedureStatus }
+  revision: { id: number, number: number, state: RevisionState, content: RevisionContent, publishedAt: string }
+  rendered: RenderedContent
+  attachments: Record<string, AttachmentDto>
+  labels: { deviceType: DeviceTypeDto | null, symptoms: SymptomDto[] }
+  author: PersonDto
+  reviewer: PersonDto | null
+  /** Revisions in flight on top of the published one, for authors and editors. */
+  pending: Array<{ id: number, number: number | null, state: RevisionState, author: PersonDto }>
+}
+
+/** GET /api/procedures (published, active) */
+export interface ProcedureListItemDto {
+  id: number
+  slug: string
+  title: string
+  deviceType: { slug: string, name: string }
+  symptoms: Array<{ slug: string, name: string }>
+  hazards: string[]
+  revisionNumber: number
+  publishedAt: string
+}
+
+export interface Paginated<T> {
+  data: T[]
+  meta: { total: number, page: number, pageSize: number, pages: number }
+}
+
+/** GET /api/revisions/[a]/compare/[b] */
+export interface TextDiffPart { value: string, added?: boolean, removed?: boolean }
+export interface FieldChange { field: string, label: string, parts: TextDiffPart[] }
+export type ItemChangeKind = 'added' | 'removed' | 'changed' | 'moved' | 'unchanged'
+export interface ItemChange {
+  key: string
+  kind: ItemChangeKind
+  /** Position before and after (0-based), null where absent. */
+  from: number | null
+  to: number | null
+  title: string
+  fields: FieldChange[]
+}
+export interface RevisionComparisonDto {
+  a: RevisionSummaryDto
+  b: RevisionSummaryDto
+  fields: FieldChange[]
+  causes: ItemChange[]
+  steps: ItemChange[]
+  parts: ItemChange[]
+}

@@ -1,0 +1,13 @@
+import { z } from 'zod'
+
+const name = z.string().trim().min(2, 'must be at least 2 characters').max(120, 'must be at most 120 characters')
+const synonyms = z.array(z.string().trim().min(1).max(80)).max(30, 'at most 30 synonyms').default([])
+const description = z.string().trim().max(2000).default('')
+
+export const SymptomCreateBody = z.object({ name, synonyms, description })
+export const SymptomPatchBody = z.object({ name: name.optional(), synonyms: synonyms.optional(), description: description.optional() })
+  .refine(b => b.name !== undefined || b.synonyms !== undefined || b.description !== undefined, { message: 'nothing to change' })
+export const SymptomMergeBody = z.object({ into: z.string().trim().min(1).max(80) })
+export const DeviceTypeCreateBody = z.object({ name, description })
+export const DeviceTypePatchBody = z.object({ name: name.optional(), description: description.optional() })
+  .refine(b => b.name !== undefined || b.description !== undefined, { message: 'nothing to change' })
