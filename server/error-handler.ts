@@ -1,15 +1,14 @@
 import type { NitroErrorHandler } from 'nitropack/types'
 import { getRequestURL, send, setResponseHeader, setResponseStatus } from 'h3'
 
-const DB_DOWN = /Sequelize(Connection|ConnectionRefused|ConnectionAcquireTimeout|HostNotReachable|ConnectionTimedOut|AccessDenied)Error|ECONNREFUSED|ER_GET_CONNECTION_TIMEOUT|ER_CONNECTION_TIMEOUT|Connection (?:closed|timeout)|socket has unexpectedly been closed/i
+const DB_DOWN = /Sequelize(Connection|ConnectionRefused|ConnectionAcquireTimeout|HostNotReachable|ConnectionTimedOut|AccessDenied)Error|ER_GET_CONNECTION_TIMEOUT|ER_CONNECTION_TIMEOUT|ER_SOCKET_UNEXPECTED_CLOSE|ER_CONNECTION_ALREADY_CLOSED/i
 
 function unavailableCause(error: unknown): string | null {
   let e: unknown = error
   for (let depth = 0; e && depth < 5; depth++) {
     const err = e as { name?: string, message?: string, code?: string, cause?: unknown, original?: unknown }
-    const text = `${err.name ?? ''} ${err.code ?? ''} ${err.message ?? ''}`
-    if (DB_DOWN.test(text)) return 'database'
     if (err.name === 'ObjectStoreUnavailable') return 'object store'
+    if (DB_DOWN.test(`${err.name ?? ''} ${err.code ?? ''}`)) return 'database'
     e = err.cause ?? err.original
   }
   return null

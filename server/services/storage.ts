@@ -10,6 +10,10 @@ export interface S3Config {
   forcePathStyle: boolean
 }
 
+/**
+ * The bucket did not answer. Carries no `cause` on purpose: h3 wraps thrown errors by their
+ * cause, and the error handler must still see this class to answer 503.
+ */
 export class ObjectStoreUnavailable extends Error {
   override name = 'ObjectStoreUnavailable'
 }
@@ -46,7 +50,7 @@ export class ObjectStore {
       await this.client.send(new PutObjectCommand({ Bucket: this.cfg.bucket, Key: key, Body: body, ContentType: contentType, ContentLength: body.length }))
     }
     catch (error) {
-      throw new ObjectStoreUnavailable(`object store refused the upload: ${(error as Error).message}`, { cause: error })
+      throw new ObjectStoreUnavailable(`object store refused the upload: ${(error as Error).message}`)
     }
   }
 
@@ -58,7 +62,7 @@ export class ObjectStore {
     catch (error) {
       const status = (error as { $metadata?: { httpStatusCode?: number } }).$metadata?.httpStatusCode
       if (status === 404) throw Object.assign(new Error('object not found'), { statusCode: 404 })
-      throw new ObjectStoreUnavailable(`object store did not answer: ${(error as Error).message}`, { cause: error })
+      throw new ObjectStoreUnavailable(`object store did not answer: ${(error as Error).message}`)
     }
   }
 
