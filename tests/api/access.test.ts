@@ -47,6 +47,19 @@ export const ROUTE_ACCESS: Record<string, Access> = {
   'GET /api/device-types': 'technician',
   'POST /api/device-types': 'editor',
   'PATCH /api/device-types/:id': 'editor',
+  'POST /api/records': 'technician',
+  'GET /api/records': 'technician',
+  'GET /api/records/export.csv': 'technician',
+  'GET /api/records/:id': 'technician',
+  'PATCH /api/records/:id': 'technician',
+  'POST /api/records/:id/close': 'technician',
+  'POST /api/records/:id/amendments': 'technician',
+  'POST /api/readings/evaluate': 'technician',
+  'POST /api/step-flags': 'technician',
+  'POST /api/step-flags/:id/resolve': 'author',
+  'GET /api/revisions/:id/flags': 'technician',
+  'GET /api/evidence': 'technician',
+  'GET /api/dashboard': 'technician',
 }
 
 // Placeholder values: the route only has to get past authorisation (a 400/404 after that is fine).

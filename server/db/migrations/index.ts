@@ -2,6 +2,7 @@ import type { QueryInterface } from 'sequelize'
 import * as m0001 from './0001-foundation'
 import * as m0002 from './0002-procedures'
 import * as m0003 from './0003-change-log'
+import * as m0004 from './0004-repair-records'
 
 export interface Migration {
   name: string
@@ -14,4 +15,5 @@ export const MIGRATIONS: Migration[] = [
   { name: '0001-foundation', ...m0001 },
   { name: '0002-procedures', ...m0002 },
   { name: '0003-change-log', ...m0003 },
+  { name: '0004-repair-records', ...m0004 },
 ]

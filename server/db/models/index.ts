@@ -7,16 +7,20 @@ import { Invitation } from './invitation'
 import { LoginFailure } from './login-failure'
 import { OutboxMessage } from './outbox-message'
 import { Procedure } from './procedure'
+import { RecordAmendment } from './record-amendment'
+import { RecordSymptom } from './record-symptom'
+import { RepairRecord } from './repair-record'
 import { ReviewComment } from './review-comment'
 import { Revision } from './revision'
+import { StepFlag } from './step-flag'
 import { Symptom } from './symptom'
 import { User } from './user'
 
-export { Attachment, AuditEvent, ChangeLogEntry, DeviceType, Invitation, LoginFailure, OutboxMessage, Procedure, ReviewComment, Revision, Symptom, User }
+export { Attachment, AuditEvent, ChangeLogEntry, DeviceType, Invitation, LoginFailure, OutboxMessage, Procedure, RecordAmendment, RecordSymptom, RepairRecord, ReviewComment, Revision, StepFlag, Symptom, User }
 
 /** Binds every model to the connection and declares the associations (once per process). */
 export function initModels(sequelize: Sequelize) {
-  for (const model of [ChangeLogEntry, User, Invitation, LoginFailure, AuditEvent, OutboxMessage, DeviceType, Symptom, Procedure, Revision, ReviewComment, Attachment]) {
+  for (const model of [ChangeLogEntry, User, Invitation, LoginFailure, AuditEvent, OutboxMessage, DeviceType, Symptom, Procedure, Revision, ReviewComment, Attachment, RepairRecord, RecordSymptom, RecordAmendment, StepFlag]) {
     model.initModel(sequelize)
   }
 

@@ -1,6 +1,7 @@
 import type { ObjectStore } from '../../services/storage'
 import type { DemoPerson } from './demo-content'
 import { seedProcedures, seedVocabulary } from './procedures'
+import { seedRecords } from './records'
 import { seedDemoUsers } from './users'
 
 /**
@@ -11,5 +12,6 @@ export async function seedDemo(store: ObjectStore): Promise<Record<string, numbe
   const users = await seedDemoUsers()
   await seedVocabulary()
   const procedures = await seedProcedures(users as Record<DemoPerson, (typeof users)[string]>, store)
-  return { users: Object.keys(users).length, 'new procedures': procedures }
+  const records = await seedRecords(users as Record<DemoPerson, (typeof users)[string]>)
+  return { users: Object.keys(users).length, 'new procedures': procedures, 'new repair records': records }
 }

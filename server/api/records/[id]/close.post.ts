@@ -1,0 +1,12 @@
+import { z } from 'zod'
+import { RecordCloseBody } from '#shared/types/records'
+import { closeRecord, toRecordDto } from '../../../services/records'
+
+const Params = z.object({ id: z.coerce.number().int().positive() })
+
+export default defineEventHandler(async (event) => {
+  const actor = await requireUser(event)
+  const { id } = await getValidatedRouterParams(event, parseWith(Params))
+  const body = await readValidatedBody(event, parseWith(RecordCloseBody))
+  return { record: await toRecordDto(await closeRecord(id, body, actor), actor) }
+})

@@ -1,0 +1,12 @@
+import { z } from 'zod'
+import { RecordPatchBody } from '#shared/types/records'
+import { patchRecord, toRecordDto } from '../../../services/records'
+
+const Params = z.object({ id: z.coerce.number().int().positive() })
+
+export default defineEventHandler(async (event) => {
+  const actor = await requireUser(event)
+  const { id } = await getValidatedRouterParams(event, parseWith(Params))
+  const body = await readValidatedBody(event, parseWith(RecordPatchBody))
+  return { record: await toRecordDto(await patchRecord(id, body, actor), actor) }
+})

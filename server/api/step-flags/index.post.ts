@@ -1,0 +1,10 @@
+import { StepFlagBody } from '#shared/types/records'
+import { flagStep } from '../../services/records'
+
+export default defineEventHandler(async (event) => {
+  const actor = await requireUser(event)
+  const body = await readValidatedBody(event, parseWith(StepFlagBody))
+  const flag = await flagStep(body, actor, useRuntimeConfig().appOrigin)
+  setResponseStatus(event, 201)
+  return { flag: { id: flag.id, stepKey: flag.stepKey, kind: flag.kind } }
+})

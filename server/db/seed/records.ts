@@ -1,0 +1,95 @@
+import type { RevisionContent } from '../../../shared/types/procedure'
+import type { Outcome } from '../../../shared/types/records'
+import { Procedure, RecordSymptom, RepairRecord, Revision, type User, useDb } from '..'
+import type { StoredStep } from '../models/repair-record'
+import { DEMO_RECORD_PROFILE, type DemoPerson } from './demo-content'
+
+/** Deterministic PRNG (mulberry32) so every seeded workshop has the same history. */
+function prng(seed: number) {
+  let a = seed >>> 0
+  return () => {
+    a = (a + 0x6D2B79F5) >>> 0
+    let t = a
+    t = Math.imul(t ^ (t >>> 15), t | 1)
+    t ^= t + Math.imul(t ^ (t >>> 7), t | 61)
+    return ((t ^ (t >>> 14)) >>> 0) / 4294967296
+  }
+}
+
+function pick<T>(rand: () => number, weighted: Array<[T, number]>): T {
+  const total = weighted.reduce((s, [, w]) => s + w, 0)
+  let x = rand() * total
+  for (const [v, w] of weighted) {
+    x -= w
+    if (x <= 0) return v
+  }
+  return weighted[weighted.length - 1]![0]
+}
+
+/** A reading a bench would give: inside the window, or clearly outside when the step points to the confirmed cause. */
+function readingFor(step: RevisionContent['steps'][number], failing: boolean): string {
+  const m = step.measurement
+  if (!m) return ''
+  if (m.openExpected && m.min === undefined && m.max === undefined) return failing ? `0.3 ${m.unit}` : 'OL'
+  const lo = m.nominal !== undefined ? m.nominal * (1 - (m.tolerancePct ?? 0) / 100) : m.min
+  const hi = m.nominal !== undefined ? m.nominal * (1 + (m.tolerancePct ?? 0) / 100) : m.max
+  if (failing) {
+    if (m.quantity === 'diode_drop' || m.quantity === 'continuity') return m.quantity === 'diode_drop' ? '0.012 V' : 'OL'
+    if (lo !== undefined && lo > 0) return `${+(lo * 0.2).toPrecision(3)} ${m.unit}`
+    if (hi !== undefined) return `${+(hi * 3).toPrecision(3)} ${m.unit}`
+  }
+  const mid = lo !== undefined && hi !== undefined ? (lo + hi) / 2 : lo ?? hi ?? 0
+  return `${+mid.toPrecision(3)} ${m.unit}`
+}
+
+/**
+ * At least 200 closed repair records for the demo, spread over the last six months, with the
+ * uneven cause distributions of the demo profile (some causes common, some rare, comebacks,
+ * units not worth repairing). Only when the workshop has no records yet.
+ */
+export async function seedRecords(people: Record<DemoPerson, User>, count = 240): Promise<number> {
+  if (await RepairRecord.count()) return 0
+  const rand = prng(20261201)
+  const procs = await Procedure.findAll({ where: { slug: Object.keys(DEMO_RECORD_PROFILE), status: 'active' } })
+  const revs = new Map((await Revision.findAll({ where: { id: procs.map(p => p.publishedRevisionId).filter((x): x is number => !!x) } })).map(r => [r.procedureId, r]))
+  const usable = procs.filter(p => revs.has(p.id))
+  const technicians = [people.ade, people.ade, people.mika, people.mika, people.tomasz]
+  const rows: Array<Parameters<typeof RepairRecord.create>[0]> = []
+  for (let i = 0; i < count; i++) {
+    const proc = pick(rand, usable.map(p => [p, DEMO_RECORD_PROFILE[p.slug]!.weight]))
+    const profile = DEMO_RECORD_PROFILE[proc.slug]!
+    const rev = revs.get(proc.id)!
+    const content = rev.content
+    let outcome: Outcome = 'repaired'
+    let causeKey: string | null = pick(rand, Object.entries(profile.causes))
+    if (rand() < profile.noFaultFound) {
+      outcome = 'no_fault_found'
+      causeKey = null
+    }
+    else if (rand() < profile.notEconomicalRate) outcome = 'not_economical'
+    else if (rand() < 0.03) outcome = 'escalated'
+    const steps: Record<string, StoredStep> = {}
+    for (const s of content.steps) steps[s.key] = { value: readingFor(s, !!causeKey && !!s.failPointsTo?.includes(causeKey)), note: '', done: true }
+    const started = new Date(Date.now() - (2 + rand() * 178) * 86_400_000)
+    const minutes = Math.round(profile.minutes[0] + rand() * (profile.minutes[1] - profile.minutes[0]))
+    const partsEur = outcome === 'repaired' ? profile.partsCostEur[0] + rand() * (profile.partsCostEur[1] - profile.partsCostEur[0]) : 0
+    const extraSymptom = rand() < 0.25 ? content.symptoms.slice(0, 1) : []
+    rows.push({
+      status: 'closed', procedureId: proc.id, revisionId: rev.id, deviceType: content.deviceType,
+      symptoms: [...new Set([...content.symptoms.slice(0, 1 + Math.floor(rand() * content.symptoms.length)), ...extraSymptom])],
+      unitModel: content.appliesTo[0]?.split(',')[0] ?? '', unitSerial: `SN${(100000 + Math.floor(rand() * 899999))}`, jobRef: `HL-${2600 + i}`,
+      technicianId: technicians[Math.floor(rand() * technicians.length)]!.id, steps, notes: '',
+      causeProcedureId: causeKey ? proc.id : null, causeKey, outcome,
+      parts: partsEur ? [{ name: content.parts[0]?.name ?? 'Replacement part', partNumber: content.parts[0]?.partNumber, cost: Math.round(partsEur * 100) / 100 }] : [],
+      partsCostCents: Math.round(partsEur * 100), minutes,
+      replacementCostCents: rand() < 0.85 ? Math.round(profile.replacementCostEur * 100) : null,
+      photoIds: [], comeback: outcome === 'repaired' && rand() < profile.comebackRate,
+      version: 3, startedAt: started, closedAt: new Date(started.getTime() + minutes * 60_000), createdAt: started,
+    })
+  }
+  await useDb().transaction(async (transaction) => {
+    const created = await RepairRecord.bulkCreate(rows, { transaction })
+    await RecordSymptom.bulkCreate(created.flatMap(r => r.symptoms.map(symptom => ({ recordId: r.id, symptom }))), { transaction })
+  })
+  return rows.length
+}
