@@ -1,4 +1,4 @@
-import { QueryTypes } from 'sequelize'
+import { Op, QueryTypes } from 'sequelize'
 import { rankCauses } from '../../shared/utils/evidence'
 import type { EvidenceCauseDto } from '../../shared/types/records'
 import { Procedure, Revision, useDb } from '../db'
@@ -11,9 +11,10 @@ export const causeId = (procedureSlug: string, causeKey: string) => `${procedure
 /** Causes of the published, active procedures for a device type that share a symptom (all of one procedure when given). */
 export async function candidateCauses(opts: { deviceType: string, symptoms: string[], procedureId?: number }): Promise<CandidateCause[]> {
   const sequelize = useDb()
-  const where: Record<string, unknown> = { state: 'published' }
   const rows = await Revision.findAll({
-    where: opts.procedureId ? { ...where, procedureId: opts.procedureId } : { ...where, [sequelize.Sequelize.Op.and]: [sequelize.where(sequelize.fn('JSON_VALUE', sequelize.col('content'), '$.deviceType'), opts.deviceType)] },
+    where: opts.procedureId
+      ? { state: 'published', procedureId: opts.procedureId }
+      : { state: 'published', [Op.and]: [sequelize.where(sequelize.fn('JSON_VALUE', sequelize.col('content'), sequelize.literal("'$.deviceType'")), opts.deviceType)] },
     include: [{ model: Procedure, as: 'procedure', where: { status: 'active' }, required: true, attributes: ['id', 'slug'] }],
   })
   const wanted = new Set(opts.symptoms)

@@ -202,8 +202,8 @@ export async function readPublished(slug: string, user: User): Promise<Procedure
 export async function listPublished(filter: { deviceType?: string, symptom?: string, page: number, pageSize: number }): Promise<Paginated<ProcedureListItemDto>> {
   const sequelize = useDb()
   const where: WhereOptions[] = [{ state: 'published' }]
-  if (filter.deviceType) where.push(sequelize.where(sequelize.fn('JSON_VALUE', sequelize.col('content'), '$.deviceType'), filter.deviceType))
-  if (filter.symptom) where.push(sequelize.where(sequelize.fn('JSON_CONTAINS', sequelize.col('content'), JSON.stringify(filter.symptom), '$.symptoms'), 1))
+  if (filter.deviceType) where.push(sequelize.where(sequelize.fn('JSON_VALUE', sequelize.col('content'), sequelize.literal("'$.deviceType'")), filter.deviceType))
+  if (filter.symptom) where.push(sequelize.where(sequelize.fn('JSON_CONTAINS', sequelize.col('content'), JSON.stringify(filter.symptom), sequelize.literal("'$.symptoms'")), 1))
   const { rows, count } = await Revision.findAndCountAll({
     where: { [Op.and]: where },
     include: [{ model: Procedure, as: 'procedure', where: { status: 'active' }, required: true }],

@@ -254,3 +254,19 @@ describe('vocabularies', () => {
     expect((await editor.post(`/api/revisions/${revision.id}/approve`)).body.revision.state).toBe('published')
   })
 })
+
+describe('the published library', () => {
+  it('filters by device type and symptom and paginates as { data, meta }', async () => {
+    const tech = await signedIn(DEMO.technician)
+    const all = (await tech.get('/api/procedures?pageSize=100')).body
+    const byType = (await tech.get('/api/procedures?deviceType=usb-c-charger-30w&pageSize=100')).body
+    expect(byType.data.length).toBeGreaterThan(0)
+    expect(byType.data.length).toBe(all.data.filter((p: { deviceType: { slug: string } }) => p.deviceType.slug === 'usb-c-charger-30w').length)
+    const bySymptom = (await tech.get('/api/procedures?symptom=does-not-dim&pageSize=100')).body
+    expect(bySymptom.data.length).toBe(all.data.filter((p: { symptoms: Array<{ slug: string }> }) => p.symptoms.some(s => s.slug === 'does-not-dim')).length)
+    const page = (await tech.get('/api/procedures?pageSize=2&page=2')).body
+    expect(page.meta).toMatchObject({ page: 2, pageSize: 2, total: all.meta.total })
+    expect(page.data).toHaveLength(2)
+    expect((await tech.get('/api/procedures?pageSize=1000')).status).toBe(400)
+  })
+})
