@@ -29,6 +29,7 @@ export default defineNuxtConfig({
     smtp: { host: '127.0.0.1', port: 2525, secure: false, user: '', password: '' },
     mail: { from: 'Benchlore <benchlore@localhost>', captureDir: '', pollMs: 2000, retryBaseMs: 5000 },
     trustProxy: false,
+    search: { pollMs: 1500 },
     session: {
       name: 'benchlore-session',
       maxAge: 60 * 60 * 12,

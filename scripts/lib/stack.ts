@@ -36,6 +36,15 @@ export function testProfile(): StackProfile {
   }
 }
 
+/** Benchmarks get a throw-away stack of their own, like the tests. */
+export function benchProfile(): StackProfile {
+  return {
+    name: 'test',
+    dataDir: join(ROOT, '.data-bench'),
+    ports: { app: 3200, db: 3327, s3: 4588, smtp: 2545 },
+  }
+}
+
 /** Which services are external (configured by the operator through env vars) and so not started. */
 export function externalServices() {
   // Services a stack started itself are marked in the environment it hands to its children

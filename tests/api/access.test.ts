@@ -60,6 +60,8 @@ export const ROUTE_ACCESS: Record<string, Access> = {
   'GET /api/revisions/:id/flags': 'technician',
   'GET /api/evidence': 'technician',
   'GET /api/dashboard': 'technician',
+  'GET /api/search': 'technician',
+  'GET /api/symptoms/common': 'technician',
 }
 
 // Placeholder values: the route only has to get past authorisation (a 400/404 after that is fine).

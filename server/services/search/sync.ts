@@ -1,0 +1,156 @@
+import { Op, QueryTypes } from 'sequelize'
+import { ChangeLogEntry, DeviceType, Procedure, Revision, Symptom, useDb } from '../../db'
+import { toSearchDocument } from './document'
+import { ProcedureSearchIndex, type EvidenceLookup, type SearchRequest, type SearchVocabulary } from './engine'
+
+/**
+ * This instance's search index over the published procedures, kept in step with MariaDB:
+ * built at start, then every few seconds it reads the change log past its watermark (written
+ * in the same transactions as publish, retire, vocabulary and record changes) and applies only
+ * what changed. Each app instance runs one; none needs to hear from another.
+ */
+export class SearchSync {
+  readonly index = new ProcedureSearchIndex()
+  private watermark = 0
+  private vocabulary: SearchVocabulary = { symptoms: [], deviceTypes: [] }
+  private evidence = new Map<number, Map<string, number>>()
+  private evidenceTotals = new Map<string, number>()
+  private ready: Promise<void> | null = null
+  private polling = false
+
+  /** How often a procedure's causes were confirmed for the queried symptoms, out of all confirmed records with them. */
+  readonly evidenceLookup: EvidenceLookup = (docId, symptoms) => {
+    const mine = this.evidence.get(docId)
+    let confirmed = 0
+    let total = 0
+    for (const s of symptoms) {
+      confirmed += mine?.get(s) ?? 0
+      total += this.evidenceTotals.get(s) ?? 0
+    }
+    return total ? { confirmed, total } : undefined
+  }
+
+  /** Loads the index once; a failed load (database away) can be started again. */
+  start(): Promise<void> {
+    this.ready ??= this.load().catch((error) => {
+      this.ready = null
+      throw error
+    })
+    return this.ready
+  }
+
+  async whenReady(timeoutMs = 15_000): Promise<boolean> {
+    const ready = this.start().then(() => true, () => false)
+    return await Promise.race([ready, new Promise<boolean>(r => setTimeout(() => r(false), timeoutMs))])
+  }
+
+  search(request: SearchRequest) {
+    return this.index.search(request, { evidence: this.evidenceLookup })
+  }
+
+  get vocabularySnapshot() {
+    return this.vocabulary
+  }
+
+  private async load() {
+    // The watermark is read before the documents, so a change committed meanwhile is applied
+    // again by the next poll rather than missed.
+    this.watermark = (await ChangeLogEntry.max<number, ChangeLogEntry>('id')) ?? 0
+    await this.loadVocabulary()
+    this.index.setVocabulary(this.vocabulary)
+    const [docs] = await Promise.all([this.loadDocuments(), this.loadEvidence()])
+    await this.index.buildAsync(docs)
+  }
+
+  private async loadVocabulary() {
+    const [symptoms, types] = await Promise.all([
+      Symptom.findAll({ where: { status: { [Op.ne]: 'merged' } } }),
+      DeviceType.findAll(),
+    ])
+    this.vocabulary = {
+      symptoms: symptoms.map(s => ({ slug: s.slug, name: s.name, synonyms: s.synonyms })),
+      deviceTypes: types.map(t => ({ slug: t.slug, name: t.name })),
+    }
+  }
+
+  private async loadDocuments(procedureIds?: number[]) {
+    const revisions = await Revision.findAll({
+      where: { state: 'published', ...(procedureIds ? { procedureId: procedureIds } : {}) },
+      include: [{ model: Procedure, as: 'procedure', where: { status: 'active' }, required: true, attributes: ['id', 'slug', 'publishedRevisionId'] }],
+    })
+    return revisions.map((r) => {
+      const proc = (r as Revision & { procedure: Procedure }).procedure
+      return toSearchDocument(proc.id, proc.slug, this.resolveMerged(r.content), this.vocabulary, r.publishedAt?.toISOString())
+    })
+  }
+
+  /** Revisions keep the symptom slugs they were written with; a merged one is read as its target. */
+  private mergedInto = new Map<string, string>()
+  private resolveMerged<T extends { symptoms: string[] }>(content: T): T {
+    if (!this.mergedInto.size) return content
+    return { ...content, symptoms: [...new Set(content.symptoms.map(s => this.mergedInto.get(s) ?? s))] }
+  }
+
+  private async loadMerged() {
+    const merged = await Symptom.findAll({ where: { status: 'merged' } })
+    const byId = new Map((await Symptom.findAll({ where: { id: merged.map(m => m.mergedIntoId!).filter(Boolean) } })).map(s => [s.id, s.slug]))
+    this.mergedInto = new Map(merged.map(m => [m.slug, byId.get(m.mergedIntoId!) ?? m.slug]))
+  }
+
+  private async loadEvidence() {
+    await this.loadMerged()
+    const rows = await useDb().query<{ pid: number, symptom: string, n: number }>(
+      `SELECT r.cause_procedure_id AS pid, s.symptom AS symptom, COUNT(*) AS n
+       FROM repair_records r JOIN record_symptoms s ON s.record_id = r.id
+       WHERE r.status = 'closed' AND r.cause_key IS NOT NULL
+       GROUP BY r.cause_procedure_id, s.symptom`,
+      { type: QueryTypes.SELECT },
+    )
+    const evidence = new Map<number, Map<string, number>>()
+    const totals = new Map<string, number>()
+    for (const row of rows) {
+      const n = Number(row.n)
+      if (!evidence.has(row.pid)) evidence.set(row.pid, new Map())
+      evidence.get(row.pid)!.set(row.symptom, n)
+      totals.set(row.symptom, (totals.get(row.symptom) ?? 0) + n)
+    }
+    this.evidence = evidence
+    this.evidenceTotals = totals
+  }
+
+  /** Applies the change log past the watermark. Returns how many entries it applied. */
+  async poll(): Promise<number> {
+    if (this.polling || !this.ready) return 0
+    this.polling = true
+    try {
+      await this.ready
+      const entries = await ChangeLogEntry.findAll({ where: { id: { [Op.gt]: this.watermark } }, order: [['id', 'ASC']], limit: 2000 })
+      if (!entries.length) return 0
+      const procedures = new Set<number>()
+      let vocabulary = false
+      let evidence = false
+      for (const e of entries) {
+        if (e.kind === 'procedure' && e.procedureId) procedures.add(e.procedureId)
+        if (e.kind === 'vocabulary') vocabulary = true
+        if (e.kind === 'evidence') evidence = true
+      }
+      if (vocabulary) {
+        await this.loadVocabulary()
+        await this.loadMerged()
+        this.index.setVocabulary(this.vocabulary)
+      }
+      if (evidence) await this.loadEvidence()
+      if (procedures.size) {
+        const docs = await this.loadDocuments([...procedures])
+        const live = new Set(docs.map(d => d.id))
+        for (const d of docs) this.index.upsert(d)
+        for (const id of procedures) if (!live.has(id)) this.index.discard(id)
+      }
+      this.watermark = entries[entries.length - 1]!.id
+      return entries.length
+    }
+    finally {
+      this.polling = false
+    }
+  }
+}

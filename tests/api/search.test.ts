@@ -1,0 +1,104 @@
+import fc from 'fast-check'
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { startApp, stopApp, testProfile } from '../../scripts/lib/stack'
+import { ApiClient, DEMO, signedIn } from '../helpers/api'
+import { makeContent } from '../helpers/content'
+import { waitUntil } from '../helpers/stack'
+
+const found = (body: { hits: Array<{ slug: string }> }, slug: string) => body.hits.some(h => h.slug === slug)
+
+describe('search over published procedures', () => {
+  it('finds demo procedures from technician phrasing with typos', async () => {
+    const tech = await signedIn(DEMO.technician)
+    const res = await tech.get(`/api/search?q=${encodeURIComponent('stuk at ful brightnes')}`)
+    expect(res.status).toBe(200)
+    expect(res.body.hits.slice(0, 5).map((h: { slug: string }) => h.slug)).toContain('vr240-stuck-at-full')
+    expect(res.body).toHaveProperty('tookMs')
+  })
+
+  it('counts facets correctly under combined filters', async () => {
+    const tech = await signedIn(DEMO.technician)
+    const library = (await tech.get('/api/procedures?pageSize=100')).body.data as Array<{ deviceType: { slug: string }, symptoms: Array<{ slug: string }>, hazards: string[] }>
+    const res = (await tech.get('/api/search?deviceType=rotary-led-dimmer-trailing-edge&hazard=mains&limit=100')).body
+    const expected = library.filter(p => p.deviceType.slug === 'rotary-led-dimmer-trailing-edge' && p.hazards.includes('mains'))
+    expect(res.total).toBe(expected.length)
+    for (const facet of res.facets.symptom as Array<{ value: string, count: number }>) {
+      expect(facet.count, facet.value).toBe(expected.filter(p => p.symptoms.some(s => s.slug === facet.value)).length)
+    }
+    // The device-type facet ignores its own filter but keeps the hazard one.
+    for (const facet of res.facets.deviceType as Array<{ value: string, count: number }>) {
+      expect(facet.count, facet.value).toBe(library.filter(p => p.deviceType.slug === facet.value && p.hazards.includes('mains')).length)
+    }
+  })
+
+  it('never answers a bad query with a 500', async () => {
+    const tech = await signedIn(DEMO.technician)
+    const long = await tech.get(`/api/search?q=${'a'.repeat(10_240)}`)
+    expect(long.status).toBe(400)
+    expect(long.body.data.fields).toHaveProperty('q')
+    for (const q of ['\u0000\u0007\u001B[31m', '!!!???...;;;', '   ', '\'"; DROP TABLE procedures; --', '𝔡𝔢𝔞𝔡 ☠', '%%%', 'a'.repeat(1999)]) {
+      const res = await tech.get(`/api/search?q=${encodeURIComponent(q)}`)
+      expect(res.status, q).toBe(200)
+    }
+    expect((await tech.get('/api/search?limit=1000')).status).toBe(400)
+    expect((await tech.get('/api/search?hazard=lava')).status).toBe(400)
+    // Property-based: arbitrary strings and parameters (OWASP ASVS 5.0 input validation).
+    await fc.assert(fc.asyncProperty(fc.string({ maxLength: 300 }), fc.option(fc.string({ maxLength: 40 })), async (q, dt) => {
+      const res = await tech.get(`/api/search?q=${encodeURIComponent(q)}${dt === null ? '' : `&deviceType=${encodeURIComponent(dt)}`}`)
+      return res.status === 200 || res.status === 400
+    }), { numRuns: 500 })
+  }, 120_000)
+})
+
+describe('what search shows follows the database, on every instance', () => {
+  const B_PORT = 3101
+  const B = `http://127.0.0.1:${B_PORT}`
+  beforeAll(async () => {
+    await startApp(testProfile(), { port: B_PORT, instance: 'app-b' })
+  }, 90_000)
+  afterAll(async () => {
+    await stopApp(testProfile(), 'app-b')
+  })
+
+  it('never shows drafts or reviews; publishing on A is found on B within 5 s, retiring on A removes it from B within 5 s', async () => {
+    const word = `zephyrquux${Date.now().toString(36)}`
+    const author = await signedIn(DEMO.author)
+    const editor = await signedIn(DEMO.editor)
+    const created = (await author.post('/api/procedures', { content: makeContent({ title: `Hum from ${word} choke`, summary: `The ${word} winding.` }) })).body
+    const onB = await new ApiClient(B).login(DEMO.editor)
+    const techB = await new ApiClient(B).login(DEMO.technician)
+    expect((await editor.get(`/api/search?q=${word}`)).body.total, 'draft not searchable').toBe(0)
+    await author.post(`/api/revisions/${created.revision.id}/submit`)
+    await new Promise(r => setTimeout(r, 2000))
+    for (const c of [editor, onB, techB]) {
+      const res = (await c.get(`/api/search?q=${word}`)).body
+      expect(res.total, 'in review: not searchable').toBe(0)
+      expect(JSON.stringify(res)).not.toContain(word)
+    }
+    await editor.post(`/api/revisions/${created.revision.id}/approve`)
+    const published = await waitUntil('published procedure visible on B', async () => found((await techB.get(`/api/search?q=${word}`)).body, created.procedure.slug), 5000, 100)
+    expect(published).toBeLessThan(5000)
+    const hit = (await techB.get(`/api/search?q=${word}`)).body.hits[0]
+    expect(hit.highlights.some((h: { snippet: Array<{ text: string, match: boolean }> }) => h.snippet.some(p => p.match))).toBe(true)
+
+    await editor.post(`/api/procedures/${created.procedure.slug}/retire`, { reason: 'Search sync check' })
+    const gone = await waitUntil('retired procedure gone from B', async () => (await techB.get(`/api/search?q=${word}`)).body.total === 0, 5000, 100)
+    expect(gone).toBeLessThan(5000)
+    for (const c of [editor, onB, techB]) {
+      const res = (await c.get(`/api/search?q=${word}`)).body
+      expect(JSON.stringify(res)).not.toContain(word)
+      expect(JSON.stringify(res.suggestions)).not.toContain(word)
+    }
+  }, 60_000)
+
+  it('follows vocabulary changes: a new synonym finds its procedures on B', async () => {
+    const editor = await signedIn(DEMO.editor)
+    const techB = await new ApiClient(B).login(DEMO.technician)
+    const synonym = `wobblegleam${Date.now().toString(36)}`
+    const symptoms = (await editor.get('/api/symptoms')).body.data as Array<{ id: number, slug: string, synonyms: string[] }>
+    const target = symptoms.find(s => s.slug === 'does-not-dim')!
+    await editor.patch(`/api/symptoms/${target.id}`, { synonyms: [...target.synonyms, synonym] })
+    await waitUntil('synonym searchable on B', async () => (await techB.get(`/api/search?q=${synonym}`)).body.total > 0, 5000, 100)
+    await editor.patch(`/api/symptoms/${target.id}`, { synonyms: target.synonyms })
+  }, 30_000)
+})
