@@ -22,3 +22,11 @@ export function parseWith<S extends z.ZodType>(schema: S) {
     throw new ValidationFailure(result.error)
   }
 }
+
+/** Validates input outside h3's readers (e.g. multipart fields) with the same 400 answer. */
+export function validateOr400<S extends z.ZodType>(schema: S, input: unknown): z.output<S> {
+  const result = schema.safeParse(input)
+  if (result.success) return result.data
+  const described = describeZodError(result.error)
+  throw createError({ statusCode: 400, statusMessage: 'Validation Error', message: described.message, data: { fields: described.fields } })
+}

@@ -62,6 +62,12 @@ export const ROUTE_ACCESS: Record<string, Access> = {
   'GET /api/dashboard': 'technician',
   'GET /api/search': 'technician',
   'GET /api/symptoms/common': 'technician',
+  'POST /api/captures': 'technician',
+  'GET /api/captures/:id': 'technician',
+  'GET /api/captures/:id/series': 'technician',
+  'GET /api/captures/:id/matches': 'technician',
+  'POST /api/captures/:id/references': 'author',
+  'GET /api/procedures/:slug/references': 'technician',
 }
 
 // Placeholder values: the route only has to get past authorisation (a 400/404 after that is fine).

@@ -3,6 +3,7 @@ import * as m0001 from './0001-foundation'
 import * as m0002 from './0002-procedures'
 import * as m0003 from './0003-change-log'
 import * as m0004 from './0004-repair-records'
+import * as m0005 from './0005-captures'
 
 export interface Migration {
   name: string
@@ -16,4 +17,5 @@ export const MIGRATIONS: Migration[] = [
   { name: '0002-procedures', ...m0002 },
   { name: '0003-change-log', ...m0003 },
   { name: '0004-repair-records', ...m0004 },
+  { name: '0005-captures', ...m0005 },
 ]

@@ -1,6 +1,7 @@
 import type { Sequelize } from 'sequelize'
 import { Attachment } from './attachment'
 import { AuditEvent } from './audit-event'
+import { Capture } from './capture'
 import { ChangeLogEntry } from './change-log-entry'
 import { DeviceType } from './device-type'
 import { Invitation } from './invitation'
@@ -12,15 +13,16 @@ import { RecordSymptom } from './record-symptom'
 import { RepairRecord } from './repair-record'
 import { ReviewComment } from './review-comment'
 import { Revision } from './revision'
+import { SignatureReference } from './signature-reference'
 import { StepFlag } from './step-flag'
 import { Symptom } from './symptom'
 import { User } from './user'
 
-export { Attachment, AuditEvent, ChangeLogEntry, DeviceType, Invitation, LoginFailure, OutboxMessage, Procedure, RecordAmendment, RecordSymptom, RepairRecord, ReviewComment, Revision, StepFlag, Symptom, User }
+export { Attachment, AuditEvent, Capture, SignatureReference, ChangeLogEntry, DeviceType, Invitation, LoginFailure, OutboxMessage, Procedure, RecordAmendment, RecordSymptom, RepairRecord, ReviewComment, Revision, StepFlag, Symptom, User }
 
 /** Binds every model to the connection and declares the associations (once per process). */
 export function initModels(sequelize: Sequelize) {
-  for (const model of [ChangeLogEntry, User, Invitation, LoginFailure, AuditEvent, OutboxMessage, DeviceType, Symptom, Procedure, Revision, ReviewComment, Attachment, RepairRecord, RecordSymptom, RecordAmendment, StepFlag]) {
+  for (const model of [ChangeLogEntry, User, Invitation, LoginFailure, AuditEvent, OutboxMessage, DeviceType, Symptom, Procedure, Revision, ReviewComment, Attachment, RepairRecord, RecordSymptom, RecordAmendment, StepFlag, Capture, SignatureReference]) {
     model.initModel(sequelize)
   }
 
@@ -33,4 +35,5 @@ export function initModels(sequelize: Sequelize) {
   Revision.belongsTo(User, { as: 'reviewer', foreignKey: 'reviewerId' })
   Revision.hasMany(ReviewComment, { as: 'comments', foreignKey: 'revisionId' })
   ReviewComment.belongsTo(User, { as: 'author', foreignKey: 'authorId' })
+  SignatureReference.belongsTo(Procedure, { as: 'procedure', foreignKey: 'procedureId' })
 }

@@ -1,6 +1,7 @@
 import type { ObjectStore } from '../../services/storage'
 import type { DemoPerson } from './demo-content'
 import { seedProcedures, seedVocabulary } from './procedures'
+import { seedCaptures } from './captures'
 import { seedRecords } from './records'
 import { seedDemoUsers } from './users'
 
@@ -13,5 +14,6 @@ export async function seedDemo(store: ObjectStore): Promise<Record<string, numbe
   await seedVocabulary()
   const procedures = await seedProcedures(users as Record<DemoPerson, (typeof users)[string]>, store)
   const records = await seedRecords(users as Record<DemoPerson, (typeof users)[string]>)
-  return { users: Object.keys(users).length, 'new procedures': procedures, 'new repair records': records }
+  const captures = await seedCaptures(users.tomasz!, store)
+  return { users: Object.keys(users).length, 'new procedures': procedures, 'new repair records': records, 'new reference captures': captures }
 }

@@ -139,12 +139,6 @@ export const FIELD_BOOSTS: Readonly<Record<IndexField, number>> = {
 const BM25 = { k: 1.2, b: 0.7, d: 0.5 } as const
 const PREFIX_WEIGHT = 0.375
 
-/** BM25+ as MiniSearch computes it. */
-function bm25(tf: number, matching: number, total: number, fieldLength: number, avgFieldLength: number): number {
-  const idf = Math.log(1 + (total - matching + 0.5) / (matching + 0.5))
-  return idf * (BM25.d + (tf * (BM25.k + 1)) / (tf + BM25.k * (1 - BM25.b + (BM25.b * fieldLength) / avgFieldLength)))
-}
-
 /** Fewer all-terms hits than this and the search widens (corrections, then fewer terms). */
 const THIN_RESULT = 3
 /** A negation alone says little ("not" is everywhere in procedure text); it refines. */
@@ -213,6 +207,7 @@ class TermIndex<T> extends MiniSearch<T> {
   }
 
   override add(document: T): void {
+    this.version++
     const bulk = this.bulkTerms
     if (!bulk) return super.add(document)
     const { extractField, stringifyField, tokenize, processTerm, fields, idField } = this._options
@@ -325,78 +320,98 @@ class TermIndex<T> extends MiniSearch<T> {
   /**
    * Scores a match tree: over every posting when `candidates` is null, else for those
    * documents only (visiting, per term and field, whichever is smaller: the postings or the
-   * candidates). AND needs every child, OR any; scores add up, as in MiniSearch.
+   * candidates). AND needs every child (the cheapest is scored first, the others only for what
+   * it found), OR any; scores add up, as in MiniSearch. The caller releases the result.
    */
-  scoreNode(node: MatchNode, candidates: ReadonlyMap<number, unknown> | null): Scores {
+  scoreNode(node: MatchNode, candidates: DocScores | null): DocScores {
     if (node.kind === 'term') return this.scoreTerm(node, candidates)
-    const parts = node.children.map((child) => this.scoreNode(child, candidates))
-    const out: Scores = new Map()
-    if (node.kind === 'and') {
-      parts.sort((a, b) => a.size - b.size)
-      const [first, ...rest] = parts
-      if (!first) return out
-      for (const [doc, r] of first) {
-        let score = r.score
-        let sources = r.sources
-        let all = true
-        for (const p of rest) {
-          const x = p.get(doc)
-          if (!x) {
-            all = false
-            break
-          }
-          score += x.score
-          sources += x.sources
-        }
-        if (all) out.set(doc, { score, sources })
+    if (node.kind === 'or') {
+      const out = this.acquire()
+      for (const child of node.children) {
+        const part = this.scoreNode(child, candidates)
+        for (const doc of part.docs) out.add(doc, part.score[doc]!, part.sources[doc]!)
+        this.release(part)
       }
       return out
     }
-    for (const p of parts) {
-      for (const [doc, x] of p) {
-        const r = out.get(doc)
-        if (r) {
-          r.score += x.score
-          r.sources += x.sources
-        } else {
-          out.set(doc, { score: x.score, sources: x.sources })
-        }
+    const children = [...node.children].sort((a, b) => this.nodeCost(a) - this.nodeCost(b))
+    let current: DocScores | null = null
+    for (const child of children) {
+      const part = this.scoreNode(child, current ?? candidates)
+      if (!current) {
+        current = part
+        continue
       }
+      const next = this.acquire()
+      for (const doc of current.docs) if (part.has(doc)) next.add(doc, current.score[doc]! + part.score[doc]!, current.sources[doc]! + part.sources[doc]!)
+      this.release(part)
+      this.release(current)
+      current = next
+      if (current.docs.length === 0) break
     }
-    return out
+    return current ?? this.acquire()
   }
 
-  private scoreTerm(node: TermNode, candidates: ReadonlyMap<number, unknown> | null): Scores {
-    const out: Scores = new Map()
+  private scoreTerm(node: TermNode, candidates: DocScores | null): DocScores {
+    const out = this.acquire()
     const total = this._documentCount
     for (const { data, weight, fields } of this.derivedTerms(node)) {
       for (const field of fields) {
         const fieldId = this._fieldIds[field]!
         const freqs = data.get(fieldId)
         if (!freqs) continue
-        const factor = weight * node.weight * ((FIELD_BOOSTS as Record<string, number>)[field] ?? 1)
+        const lengths = this.fieldLengths(fieldId)
+        // BM25+ exactly as MiniSearch computes it, its constant parts taken out of the loop.
         const matching = freqs.size
+        const factor = weight * node.weight * ((FIELD_BOOSTS as Record<string, number>)[field] ?? 1) * Math.log(1 + (total - matching + 0.5) / (matching + 0.5))
         const avgLength = this._avgFieldLength[fieldId]!
-        const add = (doc: number, tf: number): void => {
-          const score = factor * bm25(tf, matching, total, this._fieldLength.get(doc)![fieldId]!, avgLength)
-          const r = out.get(doc)
-          if (r) r.score += score
-          else out.set(doc, { score, sources: 1 })
-        }
-        if (candidates && candidates.size < freqs.size) {
-          for (const doc of candidates.keys()) {
+        if (candidates && candidates.docs.length < freqs.size) {
+          for (const doc of candidates.docs) {
             const tf = freqs.get(doc)
-            if (tf) add(doc, tf)
+            if (tf) out.add(doc, factor * (BM25.d + (tf * (BM25.k + 1)) / (tf + BM25.k * (1 - BM25.b + (BM25.b * lengths[doc]!) / avgLength))), 1, true)
           }
         } else {
           for (const [doc, tf] of freqs) {
             // Postings of discarded documents linger until MiniSearch vacuums them.
-            if (candidates ? candidates.has(doc) : this._documentIds.has(doc)) add(doc, tf)
+            if (candidates ? !candidates.has(doc) : !this._documentIds.has(doc)) continue
+            out.add(doc, factor * (BM25.d + (tf * (BM25.k + 1)) / (tf + BM25.k * (1 - BM25.b + (BM25.b * lengths[doc]!) / avgLength))), 1, true)
           }
         }
       }
     }
     return out
+  }
+
+  // Field lengths by short id in flat arrays (MiniSearch keeps a Map of arrays), rebuilt after
+  // the documents change; and a pool of score arrays, so a search allocates almost nothing.
+  private lengthsVersion = -1
+  private version = 0
+  private lengths: Float64Array[] = []
+  private readonly pool: DocScores[] = []
+
+  override discard(id: unknown): void {
+    super.discard(id)
+    this.version++
+  }
+
+  private fieldLengths(fieldId: number): Float64Array {
+    if (this.lengthsVersion !== this.version) {
+      const size = this._nextId
+      this.lengths = Object.values(this._fieldIds).map(() => new Float64Array(size))
+      for (const [doc, lengths] of this._fieldLength) lengths.forEach((n, f) => (this.lengths[f]![doc] = n))
+      this.lengthsVersion = this.version
+    }
+    return this.lengths[fieldId]!
+  }
+
+  acquire(): DocScores {
+    const scores = this.pool.pop() ?? new DocScores()
+    scores.reset(this._nextId)
+    return scores
+  }
+
+  release(scores: DocScores): void {
+    if (this.pool.length < 64) this.pool.push(scores)
   }
 
   /** Which index terms of the plan a document contains, and where: for highlighting. */
@@ -449,7 +464,59 @@ type Candidate = { id: number; score: number }
 type TermNode = { kind: 'term'; term: string; prefix: boolean; weight: number; fields: readonly string[]; derived?: DerivedTerm[] }
 type MatchNode = TermNode | { kind: 'and' | 'or'; children: MatchNode[] }
 type DerivedTerm = { term: string; data: FieldTermData; weight: number; fields: readonly string[]; postings: number }
-type Scores = Map<number, { score: number; sources: number }>
+/**
+ * Sums per document, dense over MiniSearch's short ids; `docs` lists the documents present.
+ * A stamp marks presence, so reuse needs no clearing.
+ */
+class DocScores {
+  score = new Float64Array(0)
+  sources = new Uint16Array(0)
+  groups = new Uint8Array(0)
+  docs: number[] = []
+  private mark = new Uint32Array(0)
+  private stamp = 0
+
+  reset(size: number): void {
+    if (this.mark.length < size) {
+      const capacity = Math.max(size, Math.ceil(this.mark.length * 1.5))
+      this.score = new Float64Array(capacity)
+      this.sources = new Uint16Array(capacity)
+      this.groups = new Uint8Array(capacity)
+      this.mark = new Uint32Array(capacity)
+      this.stamp = 0
+    }
+    if (++this.stamp === 0xffffffff) {
+      this.mark.fill(0)
+      this.stamp = 1
+    }
+    this.docs.length = 0
+  }
+
+  has(doc: number): boolean {
+    return this.mark[doc] === this.stamp
+  }
+
+  /** Adds to a document's sums; `once`: its sources count only on first sight (one term). */
+  add(doc: number, score: number, sources: number, once = false): void {
+    if (this.mark[doc] !== this.stamp) {
+      this.mark[doc] = this.stamp
+      this.score[doc] = score
+      this.sources[doc] = sources
+      this.groups[doc] = 0
+      this.docs.push(doc)
+    } else {
+      this.score[doc] = this.score[doc]! + score
+      if (!once) this.sources[doc] = this.sources[doc]! + sources
+    }
+  }
+
+  /** Drops documents (from `docs`; `has` stays true, so callers test `groups` or rebuild). */
+  keep(predicate: (doc: number) => boolean): void {
+    let w = 0
+    for (const doc of this.docs) if (predicate(doc)) this.docs[w++] = doc
+    this.docs.length = w
+  }
+}
 type Group = { node: MatchNode; cost: number }
 /** `sources`: query terms matched (MiniSearch's "quality" factor). */
 type Accumulated = { raw: number; sources: number; groups: number }
@@ -1087,25 +1154,27 @@ export class ProcedureSearchIndex {
     if (!this.candidateScoring) return this.evaluateWithMiniSearch(mini, groups, minMatch)
     const order = [...groups].sort((a, b) => a.cost - b.cost)
     const seeds = order.length - minMatch + 1
-    const acc = new Map<number, Accumulated>()
+    const acc = mini.acquire()
     for (let g = 0; g < order.length; g++) {
       const seeding = g < seeds
-      for (const [doc, r] of mini.scoreNode(order[g]!.node, seeding ? null : acc)) {
-        let a = acc.get(doc)
-        if (!a) {
-          if (!seeding) continue
-          acc.set(doc, (a = { raw: 0, sources: 0, groups: 0 }))
-        }
-        a.raw += r.score
-        a.sources += r.sources
-        a.groups++
+      const part = mini.scoreNode(order[g]!.node, seeding ? null : acc)
+      for (const doc of part.docs) {
+        if (!seeding && !acc.has(doc)) continue
+        acc.add(doc, part.score[doc]!, part.sources[doc]!)
+        acc.groups[doc] = acc.groups[doc]! + 1
       }
+      mini.release(part)
       const remaining = order.length - g - 1
-      if (g >= seeds - 1) for (const [doc, a] of acc) if (a.groups + remaining < minMatch) acc.delete(doc)
-      if (acc.size === 0) break
+      if (g >= seeds - 1) {
+        // A dropped document leaves `docs` but stays marked: it may still be scored through
+        // a posting list, harmlessly, as only `docs` is read out.
+        acc.keep((doc) => acc.groups[doc]! + remaining >= minMatch)
+      }
+      if (acc.docs.length === 0) break
     }
     const out: Candidate[] = []
-    for (const [doc, a] of acc) if (a.groups >= minMatch) out.push({ id: mini.externalId(doc), score: a.raw * a.sources })
+    for (const doc of acc.docs) if (acc.groups[doc]! >= minMatch) out.push({ id: mini.externalId(doc), score: acc.score[doc]! * acc.sources[doc]! })
+    mini.release(acc)
     out.sort((x, y) => y.score - x.score || x.id - y.id)
     return out
   }

@@ -1,0 +1,19 @@
+import { CaptureUploadFields } from '#shared/types/captures'
+import { MAX_CAPTURE_BYTES, storeCapture } from '../../services/captures/store'
+
+export default defineEventHandler(async (event) => {
+  const actor = await requireUser(event)
+  if (Number(getRequestHeader(event, 'content-length') ?? 0) > MAX_CAPTURE_BYTES + 64 * 1024) {
+    throw createError({ statusCode: 413, message: 'The capture is larger than 50 MB.', data: { fields: { file: 'too large' } } })
+  }
+  const parts = await readMultipartFormData(event).catch(() => {
+    throw createError({ statusCode: 400, message: 'Send the capture as multipart/form-data with the field "file".', data: { fields: { file: 'missing' } } })
+  })
+  const file = parts?.find(p => p.name === 'file' && p.filename !== undefined)
+  if (!file) throw createError({ statusCode: 400, message: 'Send the capture in the form field "file".', data: { fields: { file: 'missing' } } })
+  const text = (name: string) => parts?.find(p => p.name === name && p.filename === undefined)?.data.toString('utf8')
+  const fields = validateOr400(CaptureUploadFields, { label: text('label'), recordId: text('recordId') || undefined })
+  const capture = await storeCapture({ data: file.data }, fields, actor, useObjectStore())
+  setResponseStatus(event, 201)
+  return { id: capture.id, features: capture.features }
+})
