@@ -7,7 +7,7 @@ import { Procedure, RecordSymptom, RepairRecord, Revision, User } from '../../se
 import { seedProcedures, seedVocabulary } from '../../server/db/seed/procedures'
 import { seedDemoUsers } from '../../server/db/seed/users'
 import { DEMO_RECORD_PROFILE } from '../../server/db/seed/demo-content'
-import { evidenceFor } from '../../server/services/evidence'
+import { evidenceFor, rebuildCauseCounts } from '../../server/services/evidence'
 import { listRecords } from '../../server/services/records'
 import { ObjectStore, s3ConfigFromEnv } from '../../server/services/storage'
 import { RecordListQuery } from '../../shared/types/records'
@@ -46,6 +46,7 @@ try {
     const created = await RepairRecord.bulkCreate(rows as never[], { returning: true })
     await RecordSymptom.bulkCreate(created.flatMap(r => r.symptoms.map(symptom => ({ recordId: r.id, symptom }))))
   }
+  await rebuildCauseCounts()
   const loadMs = performance.now() - t0
   await bench.sequelize.query('ANALYZE TABLE repair_records, record_symptoms', { type: QueryTypes.SELECT })
 

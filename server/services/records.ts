@@ -9,7 +9,7 @@ import { Attachment, DeviceType, Procedure, RecordAmendment, RecordSymptom, Repa
 import type { StoredPart, StoredStep } from '../db/models/repair-record'
 import { recordAudit } from './audit'
 import { ChangeLogEntry } from '../db/models/change-log-entry'
-import { candidateCauses, causeId } from './evidence'
+import { adjustCauseCounts, candidateCauses, causeId } from './evidence'
 import { queueMail } from './mail'
 import { renderContent, toAttachmentDto } from './procedures'
 
@@ -207,6 +207,7 @@ export async function closeRecord(id: number, body: { confirmedCause: string | n
       closedAt: new Date(),
       version: locked.version + 1,
     }, { transaction })
+    await adjustCauseCounts(locked, 1, transaction)
     await evidenceChanged(transaction)
     await recordAudit({ actorId: actor.id, action: 'record.closed', entityType: 'record', entityId: id, after: { outcome: body.outcome, cause: body.confirmedCause } }, transaction)
     return locked
@@ -232,6 +233,7 @@ export async function amendRecord(id: number, body: { reason: string, changes: P
   for (const k of AMENDABLE) if (c[k] !== undefined) changes[k] = { before: before[k], after: c[k] }
   return await useDb().transaction(async (transaction) => {
     const locked = await findRecord(id, transaction)
+    await adjustCauseCounts(locked, -1, transaction)
     await locked.update({
       ...cause,
       outcome,
@@ -244,6 +246,7 @@ export async function amendRecord(id: number, body: { reason: string, changes: P
       photoIds: c.photoIds ?? locked.photoIds,
       version: locked.version + 1,
     }, { transaction })
+    await adjustCauseCounts(locked, 1, transaction)
     await RecordAmendment.create({ recordId: id, authorId: actor.id, reason: body.reason, changes }, { transaction })
     await evidenceChanged(transaction)
     await recordAudit({ actorId: actor.id, action: 'record.amended', entityType: 'record', entityId: id, before, after: changes }, transaction)

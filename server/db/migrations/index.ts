@@ -4,6 +4,7 @@ import * as m0002 from './0002-procedures'
 import * as m0003 from './0003-change-log'
 import * as m0004 from './0004-repair-records'
 import * as m0005 from './0005-captures'
+import * as m0006 from './0006-cause-counts'
 
 export interface Migration {
   name: string
@@ -18,4 +19,5 @@ export const MIGRATIONS: Migration[] = [
   { name: '0003-change-log', ...m0003 },
   { name: '0004-repair-records', ...m0004 },
   { name: '0005-captures', ...m0005 },
+  { name: '0006-cause-counts', ...m0006 },
 ]

@@ -2,6 +2,7 @@ import type { RevisionContent } from '../../../shared/types/procedure'
 import type { Outcome } from '../../../shared/types/records'
 import { Procedure, RecordSymptom, RepairRecord, Revision, type User, useDb } from '..'
 import type { StoredStep } from '../models/repair-record'
+import { rebuildCauseCounts } from '../../services/evidence'
 import { DEMO_RECORD_PROFILE, type DemoPerson } from './demo-content'
 
 /** Deterministic PRNG (mulberry32) so every seeded workshop has the same history. */
@@ -91,5 +92,6 @@ export async function seedRecords(people: Record<DemoPerson, User>, count = 240)
     const created = await RepairRecord.bulkCreate(rows, { transaction })
     await RecordSymptom.bulkCreate(created.flatMap(r => r.symptoms.map(symptom => ({ recordId: r.id, symptom }))), { transaction })
   })
+  await rebuildCauseCounts()
   return rows.length
 }
