@@ -41,7 +41,9 @@ export function createSequelize(cfg: DbConfig): Sequelize {
       decimalAsNumber: true,
     },
     // Fail fast while the database is away (the API answers 503) and recover on its own.
-    pool: { max: 10, min: 0, acquire: 4000, idle: 10_000, evict: 5_000 },
+    // Enough connections for bursts of transactions that wait on one row lock (concurrent
+    // submits); an unreachable server still fails at once through connectTimeout.
+    pool: { max: 25, min: 0, acquire: 15_000, idle: 10_000, evict: 5_000 },
     retry: { max: 0 },
     define: { underscored: true },
   })
