@@ -52,5 +52,7 @@ export default defineNuxtConfig({
   },
   vite: {
     build: { chunkSizeWarningLimit: 800 },
+    // Side-by-side dev servers (BENCHLORE_BUILD_DIR) must not share one dependency cache.
+    cacheDir: process.env.BENCHLORE_BUILD_DIR ? `node_modules/.cache/vite-${process.env.BENCHLORE_BUILD_DIR.replace(/[^\w-]/g, '')}` : undefined,
   },
 })
