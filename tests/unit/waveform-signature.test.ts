@@ -3,6 +3,7 @@ import { describe, expect, it } from 'vitest'
 import { analyseWaveform, type WaveformFeatures } from '../../shared/utils/waveform/analyse'
 import { synthesiseCapture, type SynthOptions } from '../../shared/utils/waveform/synth'
 import {
+  nearestNominalVrms,
   rankSignatures,
   SIGNATURE_COMPONENTS,
   SIGNATURE_WEIGHTS,
@@ -125,6 +126,18 @@ describe('signatureVector', () => {
     const base: SignatureFeatures = { vrms: 100, asymmetry: 0, conductionAngleDeg: { positive: 90, negative: 90 }, cutType: 'leading_edge', crestFactor: 2, thd: 1 }
     expect(signatureVector(base)[10]).toBeCloseTo(1 / Math.SQRT2, 12)
     expect(signatureVector({ ...base, thd: 0.75 })[10]).toBeCloseTo(0.6, 12)
+  })
+
+  it('measures level against the nearest nominal mains (IEC 60038 nominal voltages, from memory)', () => {
+    expect(nearestNominalVrms(236)).toBe(240)
+    expect(nearestNominalVrms(118)).toBe(120)
+    expect(nearestNominalVrms(40)).toBe(100)
+    // A full sine of 40 V picked up by a disconnected load is not a healthy 230 V output.
+    const pickup = features({ vrms: 40 })
+    const healthy = features({ vrms: 230 })
+    expect(signatureVector(pickup)[11]).toBeCloseTo(0.4, 3)
+    expect(signatureVector(healthy)[11]).toBeCloseTo(1, 3)
+    expect(signatureDistance(pickup, healthy)).toBeGreaterThan(0.15)
   })
 
   it('falls back to a nominal supply when stored features carry none', () => {

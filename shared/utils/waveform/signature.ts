@@ -13,7 +13,7 @@
  * | 8 | dead (no voltage at the load)    | 0 / 1                                | 4      |
  * | 9 | crest factor                     | log2(CF / √2) / 2, clamped 0..1      | 0.5    |
  * | 10 | voltage THD                     | THD_R = THD_F / √(1 + THD_F²)        | 0.5    |
- * | 11 | level                           | Vrms / supply Vrms, clamped 0..1     | 2      |
+ * | 11 | level                           | Vrms / nominal mains, clamped 0..1   | 2      |
  *
  * Why these weights:
  * - Conduction angles carry the most: they are what a phase controller sets and the first thing a
@@ -28,9 +28,11 @@
  * - Crest factor and THD follow from the angles for an ideal cut but also carry the shape of soft
  *   edges and the supply's own distortion, which vary from site to site: tie-breakers only.
  *   THD is mapped to THD_R (Shmilovitz, IEEE Trans. Power Delivery 2005), which is bounded.
- * - Level (load RMS over the supply RMS fitted to the conducting parts) is how much of the supply
- *   reaches the load, independent of 230 V or 120 V mains; it separates a weak output from a dead
- *   one when the angles alone are ambiguous.
+ * - Level is how much of the mains reaches the load: load RMS over the nominal mains voltage
+ *   nearest the supply RMS fitted to the conducting parts, so a 120 V and a 230 V bench compare
+ *   alike, while a few tens of volts picked up by a disconnected load (a full sine, but far below
+ *   any mains) do not pass for a healthy output. It separates a weak output from a dead one
+ *   when the angles alone are ambiguous.
  *
  * Distance = √(Σ wₖ·(aₖ − bₖ)² / Σ wₖ), a weighted RMS difference that lies in 0..1 because
  * every component does; similarity = 1 − distance.
@@ -64,8 +66,17 @@ export type SignatureFeatures = Pick<
 > & Partial<Pick<WaveformFeatures, 'dead' | 'supplyVrms'>>
 
 export interface SignatureOptions {
-  /** Supply RMS assumed when the features carry none (default 230 V). */
+  /** Nominal mains RMS; by default the one nearest the fitted supply, or 230 V when there is none. */
   nominalVrms?: number
+}
+
+/** Nominal mains voltages in use (IEC 60038 and national ones; from memory), line to neutral. */
+export const NOMINAL_MAINS_VRMS: readonly number[] = [100, 110, 115, 120, 127, 200, 208, 220, 230, 240, 277]
+
+export function nearestNominalVrms(supplyVrms: number): number {
+  let best = NOMINAL_MAINS_VRMS[0]!
+  for (const v of NOMINAL_MAINS_VRMS) if (Math.abs(v - supplyVrms) < Math.abs(best - supplyVrms)) best = v
+  return best
 }
 
 function unit(x: number): number {
@@ -84,8 +95,9 @@ export function signatureVector(features: SignatureFeatures, options: SignatureO
   vector[9] = dead || crest === null ? 0 : unit(Math.log2(crest / Math.SQRT2) / 2)
   const thd = features.thd
   vector[10] = dead || thd === null ? 0 : unit(thd / Math.sqrt(1 + thd * thd))
-  const supply = features.supplyVrms ?? options.nominalVrms ?? 230
-  vector[11] = dead ? 0 : unit(features.vrms / supply)
+  const supply = features.supplyVrms ?? null
+  const nominal = options.nominalVrms ?? (supply !== null ? nearestNominalVrms(supply) : 230)
+  vector[11] = dead ? 0 : unit(features.vrms / nominal)
   return vector
 }
 
