@@ -1,13 +1,15 @@
 /**
  * Benchmark of the in-memory procedure search on a synthetic library.
  *
- *   npx tsx scripts/bench/search-core.ts [--n 10000] [--seed 42] [--typing-every 5] [--builds 3]
+ *   npx tsx scripts/bench/search-core.ts [--n 10000] [--seed 42] [--typing-every 5] [--builds 3] [--repeat 3]
  *
  * Prints build time and heap growth, latency (p50/p95/max) over the labelled queries and over
  * as-you-type prefixes of them, and MRR and recall@5 per query kind. Targets: build ≤ 3 s,
  * p50 ≤ 5 ms, p95 ≤ 20 ms, MRR ≥ 0.85, recall@5 ≥ 0.95. Exit code 1 when a quality target is
  * missed (timings depend on the machine and are reported, not enforced; the load average is
- * printed alongside, and the build is repeated so its best run shows the uncontended cost).
+ * printed alongside; the build is repeated so its best run shows the uncontended cost, and
+ * each search's latency is the least of `repeat` runs, which filters out preemption by other
+ * processes on a shared machine; --repeat 1 gives single-run figures).
  */
 import os from 'node:os'
 import v8 from 'node:v8'
@@ -25,6 +27,7 @@ const n = arg('n', 10_000)
 const seed = arg('seed', 42)
 const typingEvery = arg('typing-every', 5)
 const builds = arg('builds', 3)
+const repeat = arg('repeat', 3)
 
 v8.setFlagsFromString('--expose-gc')
 const gc = vm.runInNewContext('gc') as () => void
@@ -74,18 +77,18 @@ let t0: number
     last = now
   }, 0)
   t0 = performance.now()
-  await asyncIndex.buildAsync(corpus.docs, { chunkSize: 250 })
+  await asyncIndex.buildAsync(corpus.docs, { chunkSize: 100 })
   const total = performance.now() - t0
   clearInterval(timer)
-  console.log(`buildAsync (chunks of 250): ${ms(total)} total, event loop held ≤ ${ms(longest)} at a time`)
+  console.log(`buildAsync (chunks of 100): ${ms(total)} total, event loop held ≤ ${ms(longest)} at a time`)
 }
 
 function latency(label: string, queries: string[]): void {
   for (const q of queries.slice(0, 200)) index.search({ q }) // warm-up
-  const times: number[] = []
-  for (const q of queries) times.push(index.search({ q }).tookMs)
-  times.sort((a, b) => a - b)
-  console.log(`${label}: ${queries.length} searches, p50 ${ms(quantile(times, 0.5))}, p95 ${ms(quantile(times, 0.95))}, max ${ms(times[times.length - 1]!)}   [targets p50 ≤ 5, p95 ≤ 20]`)
+  const best = queries.map(() => Infinity)
+  for (let r = 0; r < repeat; r++) queries.forEach((q, i) => (best[i] = Math.min(best[i]!, index.search({ q }).tookMs)))
+  best.sort((a, b) => a - b)
+  console.log(`${label}: ${queries.length} queries (each the least of ${repeat} runs), p50 ${ms(quantile(best, 0.5))}, p95 ${ms(quantile(best, 0.95))}, max ${ms(best[best.length - 1]!)}   [targets p50 ≤ 5, p95 ≤ 20]`)
 }
 
 latency('labelled queries', corpus.queries.map((q) => q.q))

@@ -29,12 +29,12 @@
  */
 import MiniSearch, { type MatchInfo, type Query } from 'minisearch'
 import SearchableMap from 'minisearch/SearchableMap'
-import { NEGATION_TERM, NEGATION_WORDS, completionStems, joinedCodes, normaliseWord, parseQuery, toIndexTerm, tokenizeWords, wordSpans, type ParsedQuery } from './query'
+import { NEGATION_TERM, completionStems, joinedCodes, normaliseWord, parseQuery, toIndexTerm, tokenizeWords, wordSpans, type ParsedQuery } from './query'
 
 // ---------------------------------------------------------------------------------------------
 // Public types
 
-/** One published procedure as the index sees it. Treated as immutable once handed over. */
+/** One published procedure as the index sees it (the index keeps its own copy). */
 export type SearchDocument = {
   /** Procedure id. */
   id: number
@@ -150,8 +150,8 @@ const MAX_CORRECTIONS = 5
 const UBIQUITY_MIN_DOCUMENTS = 500
 const UBIQUITOUS_SHARE = 0.8
 const MAX_COMPLETIONS = 64
-/** Prefix search on a 1-character term would walk most of the index. */
-const MIN_PREFIX_LENGTH = 2
+/** Completing a word of one or two letters would walk a large part of the term tree for little. */
+const MIN_PREFIX_LENGTH = 3
 /** Evidence may lift a procedure by at most 20 % over its text score. */
 export const EVIDENCE_WEIGHT = 0.2
 export const SEARCH_LIMITS = { defaultLimit: 20, maxLimit: 100, maxOffset: 10_000 } as const
@@ -298,6 +298,26 @@ class TermIndex<T> extends MiniSearch<T> {
    */
   private derivedTerms(node: TermNode): DerivedTerm[] {
     if (node.derived) return node.derived
+    if (node.prefix) {
+      // Typing asks for the same prefixes again and again; the answer holds until the index changes.
+      if (this.completionsVersion !== this.version) {
+        this.completions.clear()
+        this.completionsVersion = this.version
+      }
+      const key = `${node.term}|${node.fields.join()}`
+      const cached = this.completions.get(key)
+      if (cached) return (node.derived = cached)
+      if (this.completions.size > 5000) this.completions.clear()
+      this.completions.set(key, this.computeDerivedTerms(node))
+      return (node.derived = this.completions.get(key)!)
+    }
+    return (node.derived = this.computeDerivedTerms(node))
+  }
+
+  private completionsVersion = -1
+  private readonly completions = new Map<string, DerivedTerm[]>()
+
+  private computeDerivedTerms(node: TermNode): DerivedTerm[] {
     let out: DerivedTerm[] = []
     const offer = (term: string, data: FieldTermData, weight: number): void => {
       const fields = node.prefix ? this.fieldsFor(term, node.fields) : node.fields
@@ -307,13 +327,15 @@ class TermIndex<T> extends MiniSearch<T> {
       const data = this._index.get(node.term)
       if (data) offer(node.term, data, 1)
     } else {
+      // A word being typed is heading for a word: part numbers and codes are typed with digits.
+      const wordOnly = !/\d/.test(node.term)
       for (const [t, data] of this._index.atPrefix(node.term)) {
+        if (wordOnly && /\d/.test(t)) continue
         const extra = t.length - node.term.length
         offer(t, data, extra === 0 ? 1 : (PREFIX_WEIGHT * t.length) / (t.length + 0.3 * extra))
       }
       if (out.length > MAX_COMPLETIONS) out = out.sort((a, b) => b.postings - a.postings || (a.term < b.term ? -1 : 1)).slice(0, MAX_COMPLETIONS)
     }
-    node.derived = out
     return out
   }
 
@@ -411,7 +433,7 @@ class TermIndex<T> extends MiniSearch<T> {
   }
 
   release(scores: DocScores): void {
-    if (this.pool.length < 64) this.pool.push(scores)
+    if (this.pool.length < 16) this.pool.push(scores)
   }
 
   /** Which index terms of the plan a document contains, and where: for highlighting. */
@@ -439,16 +461,21 @@ class TermIndex<T> extends MiniSearch<T> {
 
 type FieldTermData = Map<number, Map<number, number>>
 
+/** An indexed procedure: our own copy of it, its MiniSearch short id, its facet values as codes. */
+type DocRecord = { doc: SearchDocument; short: number; device: number; symptoms: number[]; hazards: number[] }
+
 type IndexState = {
   mini: TermIndex<SearchDocument>
-  /** Our own copies (symptoms and hazards de-duplicated): callers may reuse their objects. */
-  docs: Map<number, SearchDocument>
+  /** By procedure id. Copies (symptoms and hazards de-duplicated): callers may reuse their objects. */
+  docs: Map<number, DocRecord>
+  /** The same records by MiniSearch short id, which is what scoring yields. */
+  records: Array<DocRecord | undefined>
   bySymptom: Map<string, Set<number>>
   /** Names seen on documents, for facet labels of values the vocabulary does not know. */
   symptomNames: Map<string, string>
   deviceTypeNames: Map<string, string>
   /** Filter-only listings' order (newest first), kept until the documents change. */
-  newestFirst: SearchDocument[] | null
+  newestFirst: DocRecord[] | null
 }
 
 type Alternative = { term: string; prefix: boolean; weight: number; fields?: readonly string[] }
@@ -459,7 +486,7 @@ type Alternative = { term: string; prefix: boolean; weight: number; fields?: rea
 type Slot = { term: string; word: string; prefix: boolean; alternatives: Alternative[]; candidates: Set<string>; insignificant: boolean }
 type SymptomSpan = { start: number; end: number; slugs: string[] }
 type Phrase = { terms: string[]; slug: string }
-type Candidate = { id: number; score: number }
+type Candidate = { rec: DocRecord; score: number }
 /** A query tree over single index terms: what a group of the plan must match. */
 type TermNode = { kind: 'term'; term: string; prefix: boolean; weight: number; fields: readonly string[]; derived?: DerivedTerm[] }
 type MatchNode = TermNode | { kind: 'and' | 'or'; children: MatchNode[] }
@@ -522,6 +549,7 @@ type Group = { node: MatchNode; cost: number }
 type Accumulated = { raw: number; sources: number; groups: number }
 type PendingOp = { kind: 'upsert'; doc: SearchDocument } | { kind: 'discard'; id: number } | { kind: 'vocabulary'; slugs: string[] }
 type SuggestionEntry = { id: number; slug: string; phrase: string }
+type FacetKind = 'device' | 'symptom' | 'hazard'
 
 function clampInt(value: unknown, min: number, max: number, fallback: number): number {
   if (typeof value !== 'number' || !Number.isFinite(value)) return fallback
@@ -540,11 +568,16 @@ function byCountThenLabel(a: FacetValue, b: FacetValue): number {
   return b.count - a.count || a.label.localeCompare(b.label)
 }
 
-function newestFirst(a: SearchDocument, b: SearchDocument): number {
-  const pa = a.publishedAt ?? ''
-  const pb = b.publishedAt ?? ''
+function newestFirst(a: DocRecord, b: DocRecord): number {
+  const pa = a.doc.publishedAt ?? ''
+  const pb = b.doc.publishedAt ?? ''
   if (pa !== pb) return pa < pb ? 1 : -1
-  return b.id - a.id
+  return b.doc.id - a.doc.id
+}
+
+/** Best first; equal scores by procedure id, so pages are stable. */
+function byScore(a: Candidate, b: Candidate): number {
+  return b.score - a.score || a.rec.doc.id - b.rec.doc.id
 }
 
 function yieldToEventLoop(): Promise<void> {
@@ -583,9 +616,11 @@ export class ProcedureSearchIndex {
   private phrasesByFirstTerm = new Map<string, Phrase[]>()
   private allPhrases: Phrase[] = []
   private suggestionIndex: MiniSearch<SuggestionEntry>
-  /** Indexed words (normalised, ≥ 4 letters) → their stem: the spelling-correction dictionary. */
+  /** Indexed words (normalised, ≥ 4 letters, no digits) → their stem: the spelling-correction dictionary. */
   private readonly surfaceWords = new SearchableMap<string>()
   private readonly termCache = new Map<string, string | null>()
+  private readonly facetCodes: Record<FacetKind, Map<string, number>> = { device: new Map(), symptom: new Map(), hazard: new Map() }
+  private readonly facetValues: Record<FacetKind, string[]> = { device: [], symptom: [], hazard: [] }
   private buildGeneration = 0
   private pendingOps: PendingOp[] | null = null
   private readonly candidateScoring: boolean
@@ -631,7 +666,7 @@ export class ProcedureSearchIndex {
    * build (sync or async) supersedes one in flight, whose promise then resolves unused.
    */
   async buildAsync(docs: readonly SearchDocument[], options: { chunkSize?: number } = {}): Promise<void> {
-    const chunkSize = clampInt(options.chunkSize, 1, 10_000, 250)
+    const chunkSize = clampInt(options.chunkSize, 1, 10_000, 100)
     const generation = ++this.buildGeneration
     const ops: PendingOp[] = []
     this.pendingOps = ops
@@ -734,7 +769,7 @@ export class ProcedureSearchIndex {
       }
       mode = 'browse'
       state.newestFirst ??= [...state.docs.values()].sort(newestFirst)
-      candidates = state.newestFirst.map((d) => ({ id: d.id, score: 0 }))
+      candidates = state.newestFirst.map((rec) => ({ rec, score: 0 }))
     } else {
       const matched = this.matchText(state, parsed)
       candidates = matched.results
@@ -743,37 +778,56 @@ export class ProcedureSearchIndex {
       detected = matched.detectedSymptoms
     }
 
-    // Facets and filters in one pass over the matched set.
-    const deviceCounts = new Map<string, number>()
-    const symptomCounts = new Map<string, number>()
-    const hazardCounts = new Map<string, number>()
-    const bump = (counts: Map<string, number>, key: string): void => {
-      counts.set(key, (counts.get(key) ?? 0) + 1)
-    }
+    // Facets and filters in one pass over the matched set. -1: no filter; a value no document
+    // has gets a code nothing matches.
+    const filterCode = (kind: FacetKind, value: string | undefined): number => (value === undefined ? -1 : (this.facetCodes[kind].get(value) ?? -2))
+    const fDevice = filterCode('device', filters.deviceType)
+    const fSymptom = filterCode('symptom', filters.symptom)
+    const fHazard = filterCode('hazard', filters.hazard)
+    const deviceCounts = new Int32Array(this.facetValues.device.length)
+    const symptomCounts = new Int32Array(this.facetValues.symptom.length)
+    const hazardCounts = new Int32Array(this.facetValues.hazard.length)
     const passing: Candidate[] = []
     for (const c of candidates) {
-      const doc = state.docs.get(c.id)
-      if (!doc) continue
-      const okDevice = filters.deviceType === undefined || doc.deviceType.slug === filters.deviceType
-      const okSymptom = filters.symptom === undefined || doc.symptoms.some((s) => s.slug === filters.symptom)
-      const okHazard = filters.hazard === undefined || doc.hazards.includes(filters.hazard)
-      if (okSymptom && okHazard) bump(deviceCounts, doc.deviceType.slug)
-      if (okDevice && okHazard) for (const s of doc.symptoms) bump(symptomCounts, s.slug)
-      if (okDevice && okSymptom) for (const h of doc.hazards) bump(hazardCounts, h)
+      const r = c.rec
+      const okDevice = fDevice === -1 || r.device === fDevice
+      const okSymptom = fSymptom === -1 || r.symptoms.includes(fSymptom)
+      const okHazard = fHazard === -1 || r.hazards.includes(fHazard)
+      if (okSymptom && okHazard) deviceCounts[r.device]!++
+      if (okDevice && okHazard) for (const x of r.symptoms) symptomCounts[x]!++
+      if (okDevice && okSymptom) for (const x of r.hazards) hazardCounts[x]!++
       if (okDevice && okSymptom && okHazard) passing.push(c)
     }
+    const facet = (kind: FacetKind, counts: Int32Array, label: (value: string) => string): FacetValue[] => {
+      const out: FacetValue[] = []
+      counts.forEach((count, code) => {
+        if (count > 0) {
+          const value = this.facetValues[kind][code]!
+          out.push({ value, count, label: label(value) })
+        }
+      })
+      return out.sort(byCountThenLabel)
+    }
     const facets = {
-      deviceType: [...deviceCounts].map(([value, count]) => ({ value, count, label: this.deviceTypeVocabulary.get(value)?.name ?? state.deviceTypeNames.get(value) ?? value })).sort(byCountThenLabel),
-      symptom: [...symptomCounts].map(([value, count]) => ({ value, count, label: this.symptomVocabulary.get(value)?.name ?? state.symptomNames.get(value) ?? value })).sort(byCountThenLabel),
-      hazard: [...hazardCounts].map(([value, count]) => ({ value, count, label: HAZARD_LABELS[value] ?? value })).sort(byCountThenLabel),
+      deviceType: facet('device', deviceCounts, (v) => this.deviceTypeVocabulary.get(v)?.name ?? state.deviceTypeNames.get(v) ?? v),
+      symptom: facet('symptom', symptomCounts, (v) => this.symptomVocabulary.get(v)?.name ?? state.symptomNames.get(v) ?? v),
+      hazard: facet('hazard', hazardCounts, (v) => HAZARD_LABELS[v] ?? v),
     }
 
+    // Only what can reach the page is put in order (browse lists are in order already).
+    const pageEnd = offset + limit
     const evidenceSymptoms = [...new Set([...detected, ...(filters.symptom ? [filters.symptom] : [])])]
-    const ranked = mode !== 'browse' && options.evidence && evidenceSymptoms.length > 0 ? this.applyEvidence(passing, offset + limit, evidenceSymptoms, options.evidence) : passing
+    const weighEvidence = mode !== 'browse' && options.evidence !== undefined && evidenceSymptoms.length > 0
+    let ranked: Candidate[]
+    if (mode === 'browse') ranked = passing
+    else {
+      ranked = topCandidates(passing, pageEnd, weighEvidence ? 1 + EVIDENCE_WEIGHT : 1)
+      if (weighEvidence) ranked = this.applyEvidence(ranked, evidenceSymptoms, options.evidence!)
+    }
 
     const hits: SearchHit[] = []
-    for (const c of ranked.slice(offset, offset + limit)) {
-      const doc = state.docs.get(c.id)!
+    for (const c of ranked.slice(offset, pageEnd)) {
+      const doc = c.rec.doc
       hits.push({
         id: doc.id,
         slug: doc.slug,
@@ -816,7 +870,7 @@ export class ProcedureSearchIndex {
         weights: { fuzzy: 0.45, prefix: PREFIX_WEIGHT },
       },
     })
-    return { mini, docs: new Map(), bySymptom: new Map(), symptomNames: new Map(), deviceTypeNames: new Map(), newestFirst: null }
+    return { mini, docs: new Map(), records: [], bySymptom: new Map(), symptomNames: new Map(), deviceTypeNames: new Map(), newestFirst: null }
   }
 
   private extractField(doc: SearchDocument, field: string): string | number | undefined {
@@ -878,15 +932,37 @@ export class ProcedureSearchIndex {
     if (cached !== undefined) return cached
     const term = toIndexTerm(token)
     if (this.termCache.size < TERM_CACHE_LIMIT) this.termCache.set(token, term)
-    if (term !== null && term !== NEGATION_TERM && !token.includes("'") && !token.includes('’')) {
+    // Words only: "correcting" IRF640 to IRF840 or R12 to R21 would name another part.
+    if (term !== null && term !== NEGATION_TERM && !/[\d'’]/.test(token)) {
       const word = normaliseWord(token)
       if (word.length >= 4 && !this.surfaceWords.has(word)) this.surfaceWords.set(word, term)
     }
     return term
   }
 
+  /** Facet values as small integers, so facet counting is array arithmetic. */
+  private code(kind: FacetKind, value: string): number {
+    let c = this.facetCodes[kind].get(value)
+    if (c === undefined) {
+      c = this.facetValues[kind].length
+      this.facetCodes[kind].set(value, c)
+      this.facetValues[kind].push(value)
+    }
+    return c
+  }
+
+  /** Call after the document went into MiniSearch (its short id is read from there). */
   private register(state: IndexState, doc: SearchDocument): void {
-    state.docs.set(doc.id, doc)
+    const short = state.mini.shortId(doc.id)!
+    const rec: DocRecord = {
+      doc,
+      short,
+      device: this.code('device', doc.deviceType.slug),
+      symptoms: doc.symptoms.map((s) => this.code('symptom', s.slug)),
+      hazards: doc.hazards.map((h) => this.code('hazard', h)),
+    }
+    state.docs.set(doc.id, rec)
+    state.records[short] = rec
     state.newestFirst = null
     state.deviceTypeNames.set(doc.deviceType.slug, doc.deviceType.name)
     for (const s of doc.symptoms) state.symptomNames.set(s.slug, s.name)
@@ -901,8 +977,9 @@ export class ProcedureSearchIndex {
     const old = state.docs.get(id)
     if (!old) return
     state.docs.delete(id)
+    state.records[old.short] = undefined
     state.newestFirst = null
-    for (const s of old.symptoms) state.bySymptom.get(s.slug)?.delete(id)
+    for (const s of old.doc.symptoms) state.bySymptom.get(s.slug)?.delete(id)
   }
 
   private upsertInto(state: IndexState, given: SearchDocument): void {
@@ -926,7 +1003,12 @@ export class ProcedureSearchIndex {
   private reindexSymptoms(state: IndexState, slugs: readonly string[]): number {
     const affected = new Set<number>()
     for (const slug of slugs) for (const id of state.bySymptom.get(slug) ?? []) affected.add(id)
-    for (const id of affected) state.mini.replace(state.docs.get(id)!)
+    for (const id of affected) {
+      const { doc } = state.docs.get(id)!
+      this.unregister(state, id)
+      state.mini.replace(doc)
+      this.register(state, doc)
+    }
     return affected.size
   }
 
@@ -1150,8 +1232,9 @@ export class ProcedureSearchIndex {
    * match this is a rarest-first intersection: the common words of a query ("output",
    * "load", "not") confirm a few hundred candidates instead of scoring the whole library.
    */
-  private evaluate(mini: TermIndex<SearchDocument>, groups: Group[], minMatch: number): Candidate[] {
-    if (!this.candidateScoring) return this.evaluateWithMiniSearch(mini, groups, minMatch)
+  private evaluate(state: IndexState, groups: Group[], minMatch: number): Candidate[] {
+    const mini = state.mini
+    if (!this.candidateScoring) return this.evaluateWithMiniSearch(state, groups, minMatch)
     const order = [...groups].sort((a, b) => a.cost - b.cost)
     const seeds = order.length - minMatch + 1
     const acc = mini.acquire()
@@ -1173,17 +1256,19 @@ export class ProcedureSearchIndex {
       if (acc.docs.length === 0) break
     }
     const out: Candidate[] = []
-    for (const doc of acc.docs) if (acc.groups[doc]! >= minMatch) out.push({ id: mini.externalId(doc), score: acc.score[doc]! * acc.sources[doc]! })
+    for (const doc of acc.docs) {
+      const rec = state.records[doc]
+      if (rec && acc.groups[doc]! >= minMatch) out.push({ rec, score: acc.score[doc]! * acc.sources[doc]! })
+    }
     mini.release(acc)
-    out.sort((x, y) => y.score - x.score || x.id - y.id)
     return out
   }
 
   /** The same evaluation through MiniSearch's own `search`, group by group: the reference. */
-  private evaluateWithMiniSearch(mini: TermIndex<SearchDocument>, groups: Group[], minMatch: number): Candidate[] {
+  private evaluateWithMiniSearch(state: IndexState, groups: Group[], minMatch: number): Candidate[] {
     const acc = new Map<number, Accumulated>()
     for (const group of groups) {
-      for (const r of mini.search(toQuery(group.node))) {
+      for (const r of state.mini.search(toQuery(group.node))) {
         const id = r.id as number
         const a = acc.get(id) ?? { raw: 0, sources: 0, groups: 0 }
         acc.set(id, a)
@@ -1193,8 +1278,10 @@ export class ProcedureSearchIndex {
       }
     }
     const out: Candidate[] = []
-    for (const [id, a] of acc) if (a.groups >= minMatch) out.push({ id, score: a.raw * a.sources })
-    out.sort((x, y) => y.score - x.score || x.id - y.id)
+    for (const [id, a] of acc) {
+      const rec = state.docs.get(id)
+      if (rec && a.groups >= minMatch) out.push({ rec, score: a.raw * a.sources })
+    }
     return out
   }
 
@@ -1205,7 +1292,7 @@ export class ProcedureSearchIndex {
     const run = (groups: Group[] | null, minMatch: (n: number) => number): Candidate[] => {
       if (!groups || groups.length === 0) return []
       plan.push(...groups.map((g) => g.node))
-      return this.evaluate(mini, groups, minMatch(groups.length))
+      return this.evaluate(state, groups, minMatch(groups.length))
     }
     const everyGroup = (n: number): number => n
     let slots = this.resolveSlots(mini, parsed, false)
@@ -1243,22 +1330,33 @@ export class ProcedureSearchIndex {
   // -------------------------------------------------------------------------------------------
   // Ranking, highlights, suggestions
 
-  private applyEvidence(passing: Candidate[], pageEnd: number, symptomSlugs: string[], lookup: EvidenceLookup): Candidate[] {
-    if (passing.length === 0) return passing
-    // Only hits whose text score, lifted by the largest factor, could reach the page are looked
-    // up; everything below stays below (its final score < the page's lowest text score).
-    const cut = passing[Math.min(pageEnd, passing.length) - 1]!.score / (1 + EVIDENCE_WEIGHT)
-    let k = 0
-    while (k < passing.length && passing[k]!.score >= cut) k++
-    const head = passing.slice(0, k).map((c) => {
-      const e = lookup(c.id, symptomSlugs)
+  /** Re-orders hits (the ones that can reach the page) by the evidence factor; see `search`. */
+  private applyEvidence(head: Candidate[], symptomSlugs: string[], lookup: EvidenceLookup): Candidate[] {
+    const weighed = head.map((c) => {
+      const e = lookup(c.rec.doc.id, symptomSlugs)
       const total = e && Number.isFinite(e.total) ? Math.max(0, e.total) : 0
       const confirmed = e && Number.isFinite(e.confirmed) ? Math.min(total, Math.max(0, e.confirmed)) : 0
       const rate = (confirmed + 1) / (total + 2)
-      return { ...c, textScore: c.score, score: c.score * (1 + EVIDENCE_WEIGHT * rate) }
+      return { c: { rec: c.rec, score: c.score * (1 + EVIDENCE_WEIGHT * rate) }, text: c.score }
     })
-    head.sort((a, b) => b.score - a.score || b.textScore - a.textScore || a.id - b.id)
-    return [...head, ...passing.slice(k)]
+    weighed.sort((a, b) => b.c.score - a.c.score || b.text - a.text || a.c.rec.doc.id - b.c.rec.doc.id)
+    return weighed.map((w) => w.c)
+  }
+
+  /** Highlight patterns by matched-term set: the hits of one search mostly share theirs. */
+  private readonly patterns = new Map<string, RegExp | null>()
+
+  private highlightPattern(terms: Set<string>, foldCase: boolean): RegExp | null {
+    const sorted = [...terms].sort()
+    const key = `${foldCase ? 'i' : 'c'}:${sorted.join(' ')}`
+    let pattern = this.patterns.get(key)
+    if (pattern === undefined) {
+      if (this.patterns.size > 1000) this.patterns.clear()
+      pattern = buildHighlightPattern(sorted, foldCase)
+      this.patterns.set(key, pattern)
+    }
+    if (pattern) pattern.lastIndex = 0
+    return pattern
   }
 
   private termOf(word: string): string | null {
@@ -1290,10 +1388,14 @@ export class ProcedureSearchIndex {
    * matches are marked and the rest of the text is never tokenised.
    */
   private textWindow(text: string, matched: Set<string>): Highlight | null {
-    const pattern = highlightPattern(matched)
+    // Lowercased once, the text is searched without case folding (offsets unchanged unless a
+    // character's lowercase is longer, as with "İ"; then fold instead).
+    const lower = text.toLowerCase()
+    const folded = lower.length === text.length
+    const pattern = this.highlightPattern(matched, !folded)
     if (!pattern) return null
     const found: Array<{ start: number; end: number; term: string }> = []
-    for (const m of text.matchAll(pattern)) {
+    for (const m of (folded ? lower : text).matchAll(pattern)) {
       const term = this.termOf(m[0])
       if (term === null || !matched.has(term)) continue
       found.push({ start: m.index, end: m.index + m[0].length, term })
@@ -1384,27 +1486,42 @@ export class ProcedureSearchIndex {
   }
 }
 
+/**
+ * The candidates that can appear in the first `pageEnd` places, best first: the ones scoring at
+ * least the pageEnd-th best score ÷ `slack` (slack > 1 leaves room for evidence to lift a
+ * hit by that factor). A numeric sort of the scores finds the threshold, so only this head is
+ * sorted with a comparator.
+ */
+function topCandidates(candidates: Candidate[], pageEnd: number, slack: number): Candidate[] {
+  if (candidates.length > 2 * pageEnd) {
+    const scores = Float64Array.from(candidates, (c) => c.score).sort()
+    const cut = scores[scores.length - pageEnd]! / slack
+    candidates = candidates.filter((c) => c.score >= cut)
+  }
+  return candidates.sort(byScore)
+}
+
 function toQuery(node: MatchNode): Query {
   if (node.kind === 'term') return { queries: [node.term], prefix: node.prefix, fuzzy: false, fields: [...node.fields], boostTerm: () => node.weight }
   return { combineWith: node.kind === 'and' ? 'AND' : 'OR', queries: node.children.map(toQuery) }
 }
 
-const NEGATION_SURFACES = [...NEGATION_WORDS, "[\\p{L}]+n['’]t"]
-
 function escapeRegExp(s: string): string {
   return s.replace(/[.*+?^${}()|[\]\\]/g, '\\$&')
 }
 
-/** A pattern finding the words that may index to one of the terms (confirmed afterwards). */
-function highlightPattern(terms: Set<string>): RegExp | null {
+/**
+ * A pattern finding the words that may index to one of the terms (confirmed afterwards).
+ * Negations are left out of body text: "not" is in every other sentence there.
+ */
+function buildHighlightPattern(terms: readonly string[], foldCase: boolean): RegExp | null {
   const alternatives = new Set<string>()
   for (const term of terms) {
-    if (term === NEGATION_TERM) NEGATION_SURFACES.forEach((n) => alternatives.add(n))
-    else alternatives.add(escapeRegExp(term.length > 3 && term.endsWith('y') ? term.slice(0, -1) : term))
+    if (term !== NEGATION_TERM) alternatives.add(escapeRegExp(term.length > 3 && term.endsWith('y') ? term.slice(0, -1) : term))
   }
   if (alternatives.size === 0) return null
   const body = [...alternatives].sort((a, b) => b.length - a.length).join('|')
-  return new RegExp(`(?<![\\p{L}\\p{N}])(?:${body})[\\p{L}\\p{N}]*(?:['’ʼ][\\p{L}\\p{N}]+)*`, 'giu')
+  return new RegExp(`(?<![\\p{L}\\p{N}])(?:${body})[\\p{L}\\p{N}]*(?:['’ʼ][\\p{L}\\p{N}]+)*`, foldCase ? 'giu' : 'gu')
 }
 
 function isWordChar(c: string | undefined): boolean {

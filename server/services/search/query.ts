@@ -46,7 +46,7 @@ const STOP_WORDS = new Set(
 )
 
 /** Words read as "not" (besides any word ending in n't). */
-export const NEGATION_WORDS: readonly string[] = [
+const NEGATION_WORDS: readonly string[] = [
   'no', 'not', 'never', 'none', 'nothing', 'cannot', 'nor',
   // apostrophe-less contractions as typed at the bench
   'dont', 'doesnt', 'didnt', 'wont', 'cant', 'isnt', 'arent', 'wasnt', 'werent', 'wouldnt', 'couldnt',
