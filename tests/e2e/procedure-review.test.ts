@@ -37,7 +37,7 @@ async function open(page: Page, path: string): Promise<void> {
 }
 
 async function signInAs(page: Page, email: string): Promise<void> {
-  // A dev server reloads the page when files change under it; one more try covers that.
+  // A dev server reloads the page when files change under it; another try or two covers that.
   for (let attempt = 1; ; attempt++) {
     await open(page, '/login')
     await page.getByTestId('login-email').fill(email)
@@ -273,7 +273,13 @@ describe('writing, reviewing and publishing a procedure in Chromium', () => {
     // Mains work: the caution at the top and again before the first step, neither dismissable.
     await page.getByTestId('hazard-caution').waitFor()
     expect(await page.getByTestId('hazard-caution').textContent()).toMatch(/isolating transformer/i)
-    expect(await page.getByTestId('hazard-caution-compact').count()).toBe(1)
+    const beforeSteps = page.locator('#steps').getByTestId('hazard-caution-compact')
+    await beforeSteps.waitFor()
+    const cautionFirst = await beforeSteps.evaluate((caution) => {
+      const firstStep = document.querySelector('#steps article[data-testid^="step-"]')
+      return !!firstStep && !!(caution.compareDocumentPosition(firstStep) & Node.DOCUMENT_POSITION_FOLLOWING)
+    })
+    expect(cautionFirst, 'the caution comes before step 1').toBe(true)
     expect(await page.getByTestId('hazard-caution').getByRole('button').count()).toBe(0)
 
     const step = page.getByTestId(`step-${measuredStepKey}`)

@@ -33,8 +33,17 @@ export async function screenshot(page: Page, name: string): Promise<string> {
   return file
 }
 
+/** Waits until Nuxt has hydrated the page: input typed before that is reset by hydration. */
+export async function waitForHydration(page: Page, timeout = 30_000): Promise<void> {
+  await page.waitForFunction(() => {
+    const app = (document.querySelector('#__nuxt') as { __vue_app__?: { $nuxt?: { isHydrating?: boolean } } } | null)?.__vue_app__
+    return app?.$nuxt?.isHydrating === false
+  }, undefined, { timeout })
+}
+
 export async function signIn(page: Page, email: string, password: string): Promise<void> {
   await page.goto(`${BASE_URL}/login`)
+  await waitForHydration(page)
   await page.getByTestId('login-email').fill(email)
   await page.getByTestId('login-password').fill(password)
   await page.getByTestId('login-submit').click()
