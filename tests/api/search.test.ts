@@ -18,15 +18,23 @@ describe('search over published procedures', () => {
 
   it('counts facets correctly under combined filters', async () => {
     const tech = await signedIn(DEMO.technician)
-    const library = (await tech.get('/api/procedures?pageSize=100')).body.data as Array<{ deviceType: { slug: string }, symptoms: Array<{ slug: string }>, hazards: string[] }>
-    const res = (await tech.get('/api/search?deviceType=rotary-led-dimmer-trailing-edge&hazard=mains&limit=100')).body
-    const expected = library.filter(p => p.deviceType.slug === 'rotary-led-dimmer-trailing-edge' && p.hazards.includes('mains'))
-    expect(res.total).toBe(expected.length)
-    for (const facet of res.facets.symptom as Array<{ value: string, count: number }>) {
+    type Item = { slug: string, deviceType: { slug: string }, symptoms: Array<{ slug: string }>, hazards: string[] }
+    let library: Item[] = []
+    let res: { total: number, hits: Array<{ slug: string }>, facets: Record<string, Array<{ value: string, count: number }>> } = { total: -1, hits: [], facets: {} }
+    let expected: Item[] = []
+    // Earlier tests publish and retire procedures; the index follows within one poll (≈ 1.5 s).
+    await waitUntil('index in step with the library', async () => {
+      library = (await tech.get('/api/procedures?pageSize=100')).body.data
+      res = (await tech.get('/api/search?deviceType=rotary-led-dimmer-trailing-edge&hazard=mains&limit=100')).body
+      expected = library.filter(p => p.deviceType.slug === 'rotary-led-dimmer-trailing-edge' && p.hazards.includes('mains'))
+      return res.total === expected.length
+    }, 10_000, 300)
+    expect(res.hits.map(h => h.slug).sort()).toEqual(expected.map(p => p.slug).sort())
+    for (const facet of res.facets.symptom!) {
       expect(facet.count, facet.value).toBe(expected.filter(p => p.symptoms.some(s => s.slug === facet.value)).length)
     }
     // The device-type facet ignores its own filter but keeps the hazard one.
-    for (const facet of res.facets.deviceType as Array<{ value: string, count: number }>) {
+    for (const facet of res.facets.deviceType!) {
       expect(facet.count, facet.value).toBe(library.filter(p => p.deviceType.slug === facet.value && p.hazards.includes('mains')).length)
     }
   })
