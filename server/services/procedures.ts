@@ -29,7 +29,7 @@ export function canSeeRevision(user: User, rev: Revision, proc: Procedure): bool
 const notFound = (what = 'revision') => createError({ statusCode: 404, message: `No such ${what}.` })
 const wrongState = (rev: Revision, wanted: string) => createError({
   statusCode: 409,
-  message: `This revision is ${STATE_WORDS[rev.state]} (${rev.state}); it must be ${wanted} for that.`,
+  message: `This revision is ${STATE_WORDS[rev.state as RevisionState]} (${rev.state}); it must be ${wanted} for that.`,
   data: { state: rev.state },
 })
 const STATE_WORDS: Record<RevisionState, string> = {

@@ -30,7 +30,7 @@ export async function storeImage(file: { data: Buffer, filename?: string }, acto
   if (file.data.length > MAX_IMAGE_BYTES) throw createError({ statusCode: 413, message: `The file is larger than ${MAX_IMAGE_BYTES / 1024 / 1024} MB.`, data: { fields: { file: 'too large' } } })
   const type = sniffImage(file.data)
   if (!type) throw createError({ statusCode: 415, message: 'Only JPEG, PNG and WebP photos can be uploaded (checked from the file\'s content).', data: { fields: { file: 'not a JPEG, PNG or WebP image' } } })
-  let full: { data: Buffer, info: sharp.OutputInfo }
+  let full: { data: Buffer, info: { width: number, height: number } }
   let thumb: Buffer
   try {
     const base = sharp(file.data, { failOn: 'error', limitInputPixels: 80_000_000 }).rotate()

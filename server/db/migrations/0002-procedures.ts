@@ -57,7 +57,7 @@ export async function up({ context: q }: { context: QueryInterface }) {
   await q.addIndex('revisions', ['procedure_id', 'number'], { unique: true, name: 'revisions_procedure_number' })
   await q.addIndex('revisions', ['state', 'submitted_at'])
   await q.addIndex('revisions', ['author_id', 'state'])
-  await q.addConstraint('procedures', { type: 'foreign key', fields: ['published_revision_id'], references: { table: 'revisions', field: 'id' }, name: 'procedures_published_revision_fk' })
+  await q.addConstraint('procedures', { type: 'foreign key', fields: ['published_revision_id'], references: { table: 'revisions', field: 'id' }, name: 'procedures_published_revision_fk' } as Parameters<QueryInterface['addConstraint']>[1])
 
   await q.createTable('review_comments', {
     id,

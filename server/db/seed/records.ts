@@ -89,7 +89,8 @@ export async function seedRecords(people: Record<DemoPerson, User>, count = 240)
     })
   }
   await useDb().transaction(async (transaction) => {
-    const created = await RepairRecord.bulkCreate(rows, { transaction })
+    // Rows are built field by field above; bulkCreate's creation type does not follow the JSON getters.
+    const created = await RepairRecord.bulkCreate(rows as never[], { transaction })
     await RecordSymptom.bulkCreate(created.flatMap(r => r.symptoms.map(symptom => ({ recordId: r.id, symptom }))), { transaction })
   })
   await rebuildCauseCounts()
