@@ -225,8 +225,10 @@ export async function amendRecord(id: number, body: { reason: string, changes: P
   const cause = c.confirmedCause !== undefined ? await resolveCause(r, c.confirmedCause) : { causeProcedureId: r.causeProcedureId, causeKey: r.causeKey }
   if (outcome === 'no_fault_found' && cause.causeKey) throw createError({ statusCode: 422, message: 'No cause can be confirmed when no fault was found.', data: { fields: { confirmedCause: 'must be empty for no fault found' } } })
   if (c.photoIds) await assertPhotos(c.photoIds)
+  // The cause goes by the same `procedureSlug:causeKey` id before and after, as the API shows it.
+  const causeProc = r.causeProcedureId ? await Procedure.findByPk(r.causeProcedureId, { attributes: ['slug'] }) : null
   const before: Record<string, unknown> = {
-    confirmedCause: r.causeKey ? `${r.causeProcedureId}:${r.causeKey}` : null, outcome: r.outcome, parts: r.parts, minutes: r.minutes,
+    confirmedCause: r.causeKey && causeProc ? causeId(causeProc.slug, r.causeKey) : null, outcome: r.outcome, parts: r.parts, minutes: r.minutes,
     replacementCost: eur(r.replacementCostCents), comeback: r.comeback, notes: r.notes, photoIds: r.photoIds,
   }
   const changes: Record<string, { before: unknown, after: unknown }> = {}

@@ -68,6 +68,11 @@ describe('repair records', () => {
     expect(amended.body.record).toMatchObject({ comeback: true, minutes: 50 })
     expect(amended.body.record.amendments).toHaveLength(1)
     expect(amended.body.record.amendments[0]).toMatchObject({ reason: 'Came back after a week', changes: { comeback: { before: false, after: true }, minutes: { before: 42, after: 50 } } })
+    const other2 = record.candidates.find((c: { id: string }) => c.id !== cause)
+    if (other2) {
+      const recaused = await tech.post(`/api/records/${record.id}/amendments`, { reason: 'Wrong part blamed', changes: { confirmedCause: other2.id } })
+      expect(recaused.body.record.amendments[1].changes.confirmedCause).toEqual({ before: cause, after: other2.id })
+    }
   })
 
   it('starts from symptoms alone and offers the matching procedures\' causes', async () => {
