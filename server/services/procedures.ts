@@ -13,7 +13,7 @@ import { renderMarkdown } from '../utils/markdown'
 import { recordAudit } from './audit'
 import { notifyProcedureChanged } from './change-log'
 import { queueMail } from './mail'
-import { toDeviceTypeDto, toSymptomDto } from './vocabulary'
+import { mergedSymptomSlugs, toDeviceTypeDto, toSymptomDto } from './vocabulary'
 
 // ── who may see what ────────────────────────────────────────────────────────────────────────
 // Drafts: their author and editors. Submitted revisions: authors and up. Technicians: only the
@@ -203,7 +203,13 @@ export async function listPublished(filter: { deviceType?: string, symptom?: str
   const sequelize = useDb()
   const where: WhereOptions[] = [{ state: 'published' }]
   if (filter.deviceType) where.push(sequelize.where(sequelize.fn('JSON_VALUE', sequelize.col('content'), sequelize.literal("'$.deviceType'")), filter.deviceType))
-  if (filter.symptom) where.push(sequelize.where(sequelize.fn('JSON_CONTAINS', sequelize.col('content'), JSON.stringify(filter.symptom), sequelize.literal("'$.symptoms'")), 1))
+  const mergedInto = await mergedSymptomSlugs()
+  const resolve = (slugs: string[]) => [...new Set(slugs.map(s => mergedInto.get(s) ?? s))]
+  if (filter.symptom) {
+    // A procedure written with a symptom since merged into this one is listed under it.
+    const wanted = [filter.symptom, ...[...mergedInto].filter(([, into]) => into === filter.symptom).map(([from]) => from)]
+    where.push({ [Op.or]: wanted.map(s => sequelize.where(sequelize.fn('JSON_CONTAINS', sequelize.col('content'), JSON.stringify(s), sequelize.literal("'$.symptoms'")), 1)) })
+  }
   const { rows, count } = await Revision.findAndCountAll({
     where: { [Op.and]: where },
     include: [{ model: Procedure, as: 'procedure', where: { status: 'active' }, required: true }],
@@ -212,7 +218,7 @@ export async function listPublished(filter: { deviceType?: string, symptom?: str
     offset: (filter.page - 1) * filter.pageSize,
   })
   const slugs = new Set<string>()
-  for (const r of rows) for (const s of [r.content.deviceType, ...r.content.symptoms]) slugs.add(s)
+  for (const r of rows) for (const s of [r.content.deviceType, ...resolve(r.content.symptoms)]) slugs.add(s)
   const [types, symptoms] = await Promise.all([
     DeviceType.findAll({ where: { slug: [...slugs] }, raw: true }),
     Symptom.findAll({ where: { slug: [...slugs] }, attributes: ['slug', 'name'], raw: true }),
@@ -227,7 +233,7 @@ export async function listPublished(filter: { deviceType?: string, symptom?: str
         slug: proc.slug,
         title: r.content.title,
         deviceType: { slug: r.content.deviceType, name: typeName.get(r.content.deviceType) ?? r.content.deviceType },
-        symptoms: r.content.symptoms.map(s => ({ slug: s, name: symptomName.get(s) ?? s })),
+        symptoms: resolve(r.content.symptoms).map(s => ({ slug: s, name: symptomName.get(s) ?? s })),
         hazards: r.content.hazards,
         revisionNumber: r.number!,
         publishedAt: r.publishedAt!.toISOString(),

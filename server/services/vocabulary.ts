@@ -32,6 +32,18 @@ export async function listSymptoms(): Promise<SymptomDto[]> {
   return all.map(s => toSymptomDto(s, slugById))
 }
 
+/**
+ * Merged symptoms, old slug → the accepted slug it now means. Revisions keep the slugs they
+ * were written with, so every listing reads them through this map.
+ */
+export async function mergedSymptomSlugs(): Promise<Map<string, string>> {
+  const merged = await Symptom.findAll({ where: { status: 'merged' }, attributes: ['slug', 'mergedIntoId'], raw: true })
+  if (!merged.length) return new Map()
+  const targets = await Symptom.findAll({ where: { id: merged.map(m => m.mergedIntoId!).filter(Boolean) }, attributes: ['id', 'slug'], raw: true })
+  const slugById = new Map(targets.map(t => [t.id, t.slug]))
+  return new Map(merged.map(m => [m.slug, slugById.get(m.mergedIntoId!) ?? m.slug]))
+}
+
 /** A free slug for a name: the plain slug, else with -2, -3 … */
 async function freeSlug(model: typeof Symptom | typeof DeviceType, name: string, transaction?: Transaction): Promise<string> {
   const base = slugify(name, 70)

@@ -252,6 +252,10 @@ describe('vocabularies', () => {
     const merged = await editor.post(`/api/symptoms/${proposed.id}/merge`, { into: 'dead-no-output' })
     expect(merged.body.symptom.synonyms).toContain(proposed.name)
     expect((await editor.post(`/api/revisions/${revision.id}/approve`)).body.revision.state).toBe('published')
+    // The revision keeps the old slug; the library reads it as the symptom it was merged into.
+    const listed = (await editor.get('/api/procedures?symptom=dead-no-output&pageSize=100')).body.data as Array<{ id: number, symptoms: Array<{ slug: string }> }>
+    const item = listed.find(p => p.id === revision.procedureId)
+    expect(item?.symptoms.map(s => s.slug)).toEqual(['does-not-dim', 'dead-no-output'])
   })
 })
 

@@ -27,7 +27,7 @@ describe('search over published procedures', () => {
       library = (await tech.get('/api/procedures?pageSize=100')).body.data
       res = (await tech.get('/api/search?deviceType=rotary-led-dimmer-trailing-edge&hazard=mains&limit=100')).body
       expected = library.filter(p => p.deviceType.slug === 'rotary-led-dimmer-trailing-edge' && p.hazards.includes('mains'))
-      return res.total === expected.length
+      return res.total === expected.length && res.hits.map(h => h.slug).sort().join() === expected.map(p => p.slug).sort().join()
     }, 10_000, 300)
     expect(res.hits.map(h => h.slug).sort()).toEqual(expected.map(p => p.slug).sort())
     for (const facet of res.facets.symptom!) {

@@ -1,6 +1,7 @@
 import { Op, QueryTypes } from 'sequelize'
 import { ChangeLogEntry, DeviceType, Procedure, Revision, Symptom, useDb } from '../../db'
 import { toSearchDocument } from './document'
+import { mergedSymptomSlugs } from '../vocabulary'
 import { ProcedureSearchIndex, type EvidenceLookup, type SearchRequest, type SearchVocabulary } from './engine'
 
 /**
@@ -92,9 +93,7 @@ export class SearchSync {
   }
 
   private async loadMerged() {
-    const merged = await Symptom.findAll({ where: { status: 'merged' } })
-    const byId = new Map((await Symptom.findAll({ where: { id: merged.map(m => m.mergedIntoId!).filter(Boolean) } })).map(s => [s.id, s.slug]))
-    this.mergedInto = new Map(merged.map(m => [m.slug, byId.get(m.mergedIntoId!) ?? m.slug]))
+    this.mergedInto = await mergedSymptomSlugs()
   }
 
   private async loadEvidence() {
