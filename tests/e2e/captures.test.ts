@@ -37,6 +37,7 @@ describe('waveform captures in Chromium', () => {
   it('uploads a capture, draws it, names the fault and opens the procedure it resembles', async () => {
     const { page } = browser
     await page.goto(`${BASE_URL}/captures`)
+    await page.locator('[data-testid="capture-upload-form"][data-ready="true"]').waitFor()
     await page.getByTestId('capture-label').fill('Bench test: one half-cycle uncontrolled')
     await page.getByTestId('capture-file').setInputFiles(file('one-half-uncontrolled.csv', HALF_UNCONTROLLED))
     await expect(page.getByTestId('capture-file-name').textContent()).resolves.toBe('one-half-uncontrolled.csv')
@@ -74,6 +75,7 @@ describe('waveform captures in Chromium', () => {
   it('says plainly, next to the upload, why a file cannot be used', async () => {
     const { page } = browser
     await page.goto(`${BASE_URL}/captures`)
+    await page.locator('[data-testid="capture-upload-form"][data-ready="true"]').waitFor()
     await page.getByTestId('capture-file').setInputFiles(file('too-short.csv', { ...HALF_UNCONTROLLED, cycles: 1.2 }))
     await page.getByTestId('capture-upload').click()
     const problem = page.getByTestId('capture-problem')
@@ -89,6 +91,7 @@ describe('waveform captures in Chromium', () => {
     try {
       await signIn(phone.page, DEMO.technician, DEMO_PASSWORD)
       await phone.page.goto(`${BASE_URL}/captures`)
+      await phone.page.locator('[data-testid="capture-upload-form"][data-ready="true"]').waitFor()
       await phone.page.getByTestId('capture-file').setInputFiles(file('phone.csv', { ...HALF_UNCONTROLLED, seed: 12 }))
       await phone.page.getByTestId('capture-upload').click()
       await phone.page.waitForURL(/\/captures\/\d+$/, { timeout: 30_000 })

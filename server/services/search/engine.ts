@@ -645,8 +645,9 @@ export class ProcedureSearchIndex {
   }
 
   /**
-   * Replaces the whole index at once (blocks for the duration: ≈ 2 s for 10k procedures).
-   * Set the vocabulary first, so synonyms are indexed with the documents.
+   * Replaces the whole index at once, blocking for the duration (seconds for 10k procedures:
+   * see scripts/bench/search-core.ts); a server should use `buildAsync`. Set the vocabulary
+   * first, so synonyms are indexed with the documents.
    * Duplicate ids: the last document wins.
    */
   build(docs: readonly SearchDocument[]): void {
