@@ -244,7 +244,7 @@ describe('vocabularies', () => {
     const editor = await signedIn(DEMO.editor)
     const proposed = (await author.post('/api/symptoms/propose', { name: `Clicks then dies ${Date.now()}`, synonyms: ['click dead'] })).body.symptom
     expect(proposed.status).toBe('proposed')
-    const { revision } = await newDraft(author, makeContent({ symptoms: ['does-not-dim', proposed.slug] }))
+    const { procedure, revision } = await newDraft(author, makeContent({ symptoms: ['does-not-dim', proposed.slug] }))
     expect((await author.post(`/api/revisions/${revision.id}/submit`)).status).toBe(200)
     const blocked = await editor.post(`/api/revisions/${revision.id}/approve`)
     expect(blocked.status).toBe(409)
@@ -254,7 +254,7 @@ describe('vocabularies', () => {
     expect((await editor.post(`/api/revisions/${revision.id}/approve`)).body.revision.state).toBe('published')
     // The revision keeps the old slug; the library reads it as the symptom it was merged into.
     const listed = (await editor.get('/api/procedures?symptom=dead-no-output&pageSize=100')).body.data as Array<{ id: number, symptoms: Array<{ slug: string }> }>
-    const item = listed.find(p => p.id === revision.procedureId)
+    const item = listed.find(p => p.id === procedure.id)
     expect(item?.symptoms.map(s => s.slug)).toEqual(['does-not-dim', 'dead-no-output'])
   })
 })
