@@ -109,8 +109,8 @@ describe('guided diagnosis at the bench, in Chromium', () => {
 
     // The closed record counts as evidence on the procedure page.
     await open(page, `/procedures/${slug}`)
-    await expect.poll(() => page.getByTestId('cause-evidence-shorted-fet').textContent(), WAIT).toMatch(/confirmed in 1 of 1 record$/)
-    expect(await page.getByTestId('cause-evidence-open-pot').textContent()).toMatch(/confirmed in 0 of 1 record$/)
+    await expect.poll(() => page.getByTestId('cause-evidence-shorted-fet').textContent(), WAIT).toMatch(/confirmed in 1 of 1 record\s*$/)
+    expect(await page.getByTestId('cause-evidence-open-pot').textContent()).toMatch(/confirmed in 0 of 1 record\s*$/)
     // The cause confirmed by the team now leads the list.
     expect(await page.locator('[data-testid="cause-list"] > li').first().getAttribute('data-testid')).toBe('cause-shorted-fet')
     await screenshot(page, 'guided-diagnosis-evidence')
