@@ -6,7 +6,7 @@
  *
  * Measures, interleaved and as medians of the repetitions:
  *   (a) the bare float parse: split lines, split fields, Number() into Float64Arrays (no CSV package),
- *   (b) parseCaptureCsv: the real stream parse through csv-parse, fed in 64 KB chunks,
+ *   (b) parseCaptureCsv: the real stream parse (uDSV for unquoted exports, csv-parse when quoted), fed in 64 KB chunks,
  *   (c) analyseWaveform on the parsed capture.
  * Targets: (b)+(c) ≤ 1000 ms and ≤ 3× (a); (c) well under 300 ms. Timings depend on the machine
  * and are reported, not enforced; the exit code is 1 only when the parsers disagree.
@@ -126,7 +126,7 @@ const row = (label: string, wall: number, cpuTime: number, target = ''): string 
 console.log(`analysis: ${summary}`)
 console.log(`medians of ${reps} runs:${'wall'.padStart(34)}${'CPU'.padStart(12)}`)
 console.log(row('(a) bare float parse', bare, cpuBare))
-console.log(row('(b) parseCaptureCsv (csv-parse)', parse, median(cpu.parse)))
+console.log(row('(b) parseCaptureCsv (uDSV)    ', parse, median(cpu.parse)))
 console.log(row('(c) analyseWaveform', analyse, median(cpu.analyse), '[target well under 300 ms]'))
 console.log(row('total (b)+(c)', total, cpuTotal, `[target ≤ 1000 ms: ${total <= 1000 ? 'met' : 'missed'}]`))
 console.log(`  ${'ratio ((b)+(c)) / (a)'.padEnd(34)}${`${(total / bare).toFixed(2)}×`.padStart(10)}${`${(cpuTotal / cpuBare).toFixed(2)}×`.padStart(12)}   [target ≤ 3×: ${total / bare <= 3 ? 'met' : 'missed'}]`)

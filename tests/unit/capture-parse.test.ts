@@ -252,3 +252,31 @@ describe('parseCaptureCsv: round trip with captureToCsv', () => {
     expect(analyseWaveform(r).features.vrms).toBeCloseTo(analyseWaveform(capture).features.vrms, 3)
   })
 })
+
+describe('parseCaptureCsv: the unquoted fast path and the quoted path agree', () => {
+  // The same synthetic export (invented test data), once plain and once with a quoted header
+  // name, which sends it through csv-parse instead of uDSV; and with rows that break the
+  // fixed column count uDSV reads (a short row, blank lines, CRLF endings).
+  const capture = synthesiseCapture({ cut: 'trailing_edge', conductionAngleDeg: 120, sampleRateHz: 10_000, cycles: 4, load: { resistanceOhm: 100 }, noiseVrms: 0.2, seed: 7 })
+  const plain = captureToCsv(capture, { digits: 9 })
+  const quoted = plain.replace(/^time,/, '"time",')
+
+  it.each([1, 7, 4096])('gives the same samples in %i-byte chunks', async (size) => {
+    const a = await parseCaptureCsv(chunked(plain, size))
+    const b = await parseCaptureCsv(chunked(quoted, size))
+    expect(a.t.length).toBe(capture.t.length)
+    expect(Array.from(a.t)).toEqual(Array.from(b.t))
+    expect(Array.from(a.v)).toEqual(Array.from(b.v))
+    expect(Array.from(a.i!)).toEqual(Array.from(b.i!))
+  })
+
+  it('drops a short row without losing the row after it, and skips blank lines, with CRLF endings', async () => {
+    const text = 'time,voltage,current\r\n0,1,0.1\r\n0.001,2\r\n\r\n0.002,3,0.3\r\n0.003,4,0.4\r\n'
+    for (const variant of [text, text.replace('time', '"time"')]) {
+      const r = await parse(variant, { badRowTolerance: 0.5 })
+      expect(Array.from(r.t)).toEqual([0, 0.002, 0.003])
+      expect(Array.from(r.i!)).toEqual([0.1, 0.3, 0.4])
+      expect(r.meta.droppedRows).toBe(1)
+    }
+  })
+})

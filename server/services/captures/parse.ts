@@ -1,10 +1,15 @@
 /**
  * Streaming parser for scope and logger exports (CSV: time, voltage, optional current).
  *
- * The bytes go through csv-parse as they arrive and each record is written straight into
- * growing Float64Arrays; no array of row objects is ever built. The first 64 KB are looked at
- * once beforehand to pick the delimiter (tab, semicolon or comma, judged on the lines that start
+ * The bytes are parsed as they arrive and each record is written straight into growing
+ * Float64Arrays; no array of row objects is ever built. The first 64 KB are looked at once
+ * beforehand to pick the delimiter (tab, semicolon or comma, judged on the lines that start
  * with a number) and whether numbers use a decimal comma (only with ; or tab).
+ *
+ * Two CSV packages do the splitting. Instrument exports almost never quote a field: then the
+ * prologue is split line by line and the data rows go through uDSV's incremental parser, about
+ * eight times faster than csv-parse on a 1M-row export (npm run bench:captures). A file with a
+ * quote anywhere in its first 64 KB goes through csv-parse, which handles quoting in full.
  *
  * Everything before the first numeric row is the prologue: instrument metadata ("Sample
  * interval,1e-05"), a header row naming the columns (units may sit inside: "time (ms)",
@@ -17,7 +22,9 @@
  * error. Errors are `CaptureFormatError` with a code the API maps to HTTP 422.
  */
 import { once } from 'node:events'
+import { StringDecoder } from 'node:string_decoder'
 import { parse as csvParse } from 'csv-parse'
+import { initParser } from 'udsv'
 
 export type CaptureFormatErrorCode =
   | 'EMPTY_FILE'
@@ -293,6 +300,14 @@ class CaptureSink {
     return field !== undefined && field.trim() !== '' && !Number.isNaN(this.num(field))
   }
 
+  /** Whether the first data row has been seen (the columns are then planned). */
+  get planned(): boolean {
+    return this.layout !== null
+  }
+
+  /** Fields in the first data row, once planned. */
+  dataFields = 0
+
   record(fields: string[]): void {
     this.rows++
     if (this.layout === null) {
@@ -302,6 +317,7 @@ class CaptureSink {
         return
       }
       this.layout = this.planColumns(fields)
+      this.dataFields = fields.length
     }
     this.dataRow(fields)
   }
@@ -561,6 +577,7 @@ export async function parseCaptureCsv(
   const { delimiter, decimalComma } = sniffFormat(headText.slice(0, SNIFF_BYTES))
 
   const sink = new CaptureSink(delimiter, decimalComma, maxSamples)
+  if (!headText.includes('"')) return await parseUnquoted(Buffer.concat(head), exhausted, iterator, sink, delimiter, tolerance)
   // Quotes are rare in instrument exports; relaxing them keeps a stray one from failing a file.
   const parser = csvParse({ delimiter, bom: true, relax_column_count: true, relax_quotes: true, skip_empty_lines: true })
   let failure: unknown = null
@@ -611,6 +628,83 @@ export async function parseCaptureCsv(
       throw new CaptureFormatError('MALFORMED_CSV', `the file is not valid CSV: ${(failure as Error).message}`)
     }
     throw failure
+  }
+  return sink.finish(tolerance)
+}
+
+/**
+ * The common case: no quotes. The prologue is split line by line until the first data row; the
+ * rest goes through uDSV with the column count of that row. Rows end at "\n" (a "\r" before it
+ * is whitespace to Number()), or at "\r" in files that have no "\n" at all.
+ */
+async function parseUnquoted(
+  headBytes: Buffer,
+  exhausted: boolean,
+  iterator: AsyncIterator<Buffer | string | Uint8Array>,
+  sink: CaptureSink,
+  delimiter: CsvDelimiter,
+  tolerance: number,
+): Promise<ParsedCapture> {
+  const utf16 = headBytes[0] === 0xff && headBytes[1] === 0xfe
+  const decoder = new StringDecoder(utf16 ? 'utf16le' : 'utf8')
+  let text = decoder.write(utf16 ? headBytes.subarray(2) : headBytes)
+  if (text.charCodeAt(0) === 0xfeff) text = text.slice(1)
+  const rowEnd = !text.includes('\n') && text.includes('\r') ? '\r' : '\n'
+  let done = exhausted
+  const more = async (): Promise<string | null> => {
+    if (done) return null
+    const next = await iterator.next()
+    if (next.done) {
+      done = true
+      return decoder.end() || null
+    }
+    return decoder.write(toBuffer(next.value))
+  }
+
+  try {
+    // Prologue: metadata, header and unit rows, up to and including the first data row.
+    let pos = 0
+    while (!sink.planned) {
+      let end = text.indexOf(rowEnd, pos)
+      if (end < 0) {
+        const chunk = await more()
+        if (chunk !== null) {
+          text = text.slice(pos) + chunk
+          pos = 0
+          continue
+        }
+        if (pos >= text.length) break
+        end = text.length
+      }
+      const line = text.slice(pos, end)
+      pos = end + 1
+      if (line.trim() !== '') sink.record(line.replace(/\r$/, '').split(delimiter))
+    }
+    if (!sink.planned) return sink.finish(tolerance)
+
+    // Data rows. A row with fewer fields than the first one runs on into the next line (uDSV
+    // reads a fixed number of columns); such a row is split again here, so no row is lost.
+    const cols = Array.from({ length: sink.dataFields }, (_, k) => ({ name: `c${k}`, type: 's' as const, repl: { empty: '', null: undefined, NaN: undefined } }))
+    const parser = initParser({ col: delimiter, row: rowEnd, encl: '', esc: '', trim: false, cols })
+    const onRow = (row: string[]): void => {
+      for (let k = 0; k < row.length; k++) {
+        if (row[k]!.includes(rowEnd)) {
+          for (const line of row.join(delimiter).split(rowEnd)) if (line.trim() !== '') sink.record(line.split(delimiter))
+          return
+        }
+      }
+      if (row.length > 1 || row[0]!.trim() !== '') sink.record(row)
+    }
+    let chunk: string | null = text.slice(pos)
+    while (chunk !== null) {
+      if (chunk !== '') parser.chunk<string[]>(chunk, parser.stringArrs, onRow)
+      chunk = await more()
+    }
+    parser.end()
+  }
+  catch (error) {
+    await iterator.return?.()
+    throw error
   }
   return sink.finish(tolerance)
 }
