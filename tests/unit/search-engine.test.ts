@@ -2,7 +2,7 @@ import fc from 'fast-check'
 import { beforeEach, describe, expect, it } from 'vitest'
 import { generateCorpus } from '../../server/services/search/corpus'
 import { EVIDENCE_WEIGHT, ProcedureSearchIndex, SEARCH_LIMITS, type SearchDocument, type SearchHit, type SearchVocabulary } from '../../server/services/search/engine'
-import { QUERY_LIMITS, parseQuery, stemWord, toIndexTerm } from '../../server/services/search/query'
+import { HYPHENATED_CODE, QUERY_LIMITS, joinedCodes, parseQuery, stemWord, toIndexTerm } from '../../server/services/search/query'
 
 // A small hand-written library. Expected results below follow from what each document says
 // (by construction), never from running the engine.
@@ -446,4 +446,18 @@ describe('ProcedureSearchIndex: agreement with MiniSearch', () => {
     }
     expect(compared).toBeGreaterThan(300)
   }, 60_000)
+})
+
+describe('joinedCodes', () => {
+  const reference = (text: string) => [...text.matchAll(HYPHENATED_CODE)].map(m => m[1]! + m[2]!)
+  it('finds what the HYPHENATED_CODE pattern finds', () => {
+    for (const text of ['VR-240 and USB-C', 'A-B-C', '5VR-240', 'PX-10L, TO-220;', 'x-y', 'émetteur-Ω', 'é-1 ü-ß', '-A', 'A-', 'USB-C-2', 'Q1-Q2 R-12a-b']) {
+      expect(joinedCodes(text), text).toEqual(reference(text))
+    }
+    // Property-based: random strings over letters, digits, hyphens and separators.
+    const alphabet = fc.constantFrom('A', 'b', 'é', 'Ω', '1', '٣', '-', '–', ' ', ',', '.', 'x', '9', 'ß')
+    fc.assert(fc.property(fc.array(alphabet, { maxLength: 40 }).map(a => a.join('')), text => {
+      expect(joinedCodes(text)).toEqual(reference(text))
+    }), { numRuns: 2000 })
+  })
 })

@@ -188,21 +188,47 @@ function maxEdits(word: string): number {
  * ids; `externalId` maps back.
  */
 class TermIndex<T> extends MiniSearch<T> {
-  /** During `addAll`: term → its postings, so each occurrence skips the walk down the term tree. */
-  private bulkTerms: Map<string, FieldTermData> | null = null
+  /**
+   * Optional shortcut for bulk indexing: a field's terms already counted, exactly what counting
+   * the output of `tokenize` would give (it saves a token array and a second hash per token).
+   */
+  countTerms: ((text: string, field: string) => Map<string, number>) | null = null
 
   /**
-   * Bulk indexing, ≈ 40 % faster than MiniSearch's own loop: identical postings, field
-   * lengths and averages (its `add`, step for step), but a term's postings are found through
-   * a hash map instead of the radix tree for every token. Only while the index is being filled
-   * in one go: nothing can delete a term from the tree meanwhile.
+   * During `addAll`: term → per field, its new postings as flat [shortId, count, …] pairs.
+   * They go into MiniSearch's maps once per term at the end (`flushBulk`), each map filled in
+   * one tight loop instead of one term lookup and two map lookups per posting.
+   */
+  private bulkTerms: Map<string, Array<number[] | undefined>> | null = null
+
+  /**
+   * Bulk indexing, about twice as fast as MiniSearch's own loop: identical postings, field
+   * lengths and averages (its `add`, step for step), but postings are gathered per term and
+   * stored in one go. Only while the index is being filled in one go: nothing searches or
+   * deletes meanwhile (the method is synchronous).
    */
   override addAll(documents: readonly T[]): void {
     this.bulkTerms = new Map()
     try {
       for (const document of documents) this.add(document)
     } finally {
-      this.bulkTerms = null
+      this.flushBulk()
+    }
+  }
+
+  private flushBulk(): void {
+    const bulk = this.bulkTerms
+    this.bulkTerms = null
+    if (!bulk) return
+    for (const [term, perField] of bulk) {
+      const data = this._index.fetch(term, () => new Map()) as FieldTermData
+      for (let fieldId = 0; fieldId < perField.length; fieldId++) {
+        const flat = perField[fieldId]
+        if (!flat) continue
+        let docs = data.get(fieldId)
+        if (!docs) data.set(fieldId, (docs = new Map()))
+        for (let k = 0; k < flat.length; k += 2) docs.set(flat[k]!, flat[k + 1]!)
+      }
     }
   }
 
@@ -220,19 +246,25 @@ class TermIndex<T> extends MiniSearch<T> {
     this._documentCount += 1
     this._nextId += 1
     const post = (fieldId: number, term: string, n: number): void => {
-      let data = bulk.get(term)
-      if (!data) bulk.set(term, (data = this._index.fetch(term, () => new Map())))
-      let docs = data.get(fieldId)
-      if (!docs) data.set(fieldId, (docs = new Map()))
-      docs.set(shortId, (docs.get(shortId) ?? 0) + n)
+      let perField = bulk.get(term)
+      if (!perField) bulk.set(term, (perField = []))
+      const flat = perField[fieldId] ?? (perField[fieldId] = [])
+      // Two tokens of one field may give the same term: their counts add up, as in MiniSearch.
+      if (flat.length && flat[flat.length - 2] === shortId) flat[flat.length - 1]! += n
+      else flat.push(shortId, n)
     }
     for (const field of fields) {
       const value = extractField(document, field)
       if (value == null) continue
       const fieldId = this._fieldIds[field]!
       // Occurrences counted first: one posting update per distinct token, not per occurrence.
-      const counts = new Map<string, number>()
-      for (const token of tokenize(stringifyField(value, field), field)) counts.set(token, (counts.get(token) ?? 0) + 1)
+      const text = stringifyField(value, field)
+      let counts: Map<string, number>
+      if (this.countTerms) counts = this.countTerms(text, field)
+      else {
+        counts = new Map<string, number>()
+        for (const token of tokenize(text, field)) counts.set(token, (counts.get(token) ?? 0) + 1)
+      }
       let lengths = this._fieldLength.get(shortId)
       if (!lengths) this._fieldLength.set(shortId, (lengths = []))
       lengths[fieldId] = counts.size
@@ -580,6 +612,12 @@ function byScore(a: Candidate, b: Candidate): number {
   return b.score - a.score || a.rec.doc.id - b.rec.doc.id
 }
 
+function countWords(words: readonly string[]): Map<string, number> {
+  const counts = new Map<string, number>()
+  for (const w of words) counts.set(w, (counts.get(w) ?? 0) + 1)
+  return counts
+}
+
 function yieldToEventLoop(): Promise<void> {
   return new Promise((resolve) => setTimeout(resolve, 0))
 }
@@ -871,6 +909,7 @@ export class ProcedureSearchIndex {
         weights: { fuzzy: 0.45, prefix: PREFIX_WEIGHT },
       },
     })
+    mini.countTerms = (text, field) => (field === 'symptomKey' ? countWords(text.split(' ').filter(Boolean)) : this.countIndexTerms(text, field === 'text'))
     return { mini, docs: new Map(), records: [], bySymptom: new Map(), symptomNames: new Map(), deviceTypeNames: new Map(), newestFirst: null }
   }
 
@@ -925,6 +964,21 @@ export class ProcedureSearchIndex {
       out.push(term)
     }
     return out
+  }
+
+  /** What counting `indexTerms(text, capRepeats)` gives, without the array in between. */
+  private countIndexTerms(text: string, capRepeats: boolean): Map<string, number> {
+    const counts = new Map<string, number>()
+    const add = (token: string): void => {
+      const term = this.indexTerm(token)
+      if (term === null) return
+      const n = counts.get(term)
+      if (n === undefined) counts.set(term, 1)
+      else if (!capRepeats || n < MAX_TEXT_TERM_FREQUENCY) counts.set(term, n + 1)
+    }
+    for (const token of tokenizeWords(text)) add(token)
+    if (text.includes('-') || text.includes('‑') || text.includes('–') || text.includes('‐')) for (const token of joinedCodes(text)) add(token)
+    return counts
   }
 
   /** `toIndexTerm`, memoised; first sight of a word also files it in the correction dictionary. */

@@ -63,12 +63,57 @@ export function tokenizeWords(text: string): string[] {
 }
 
 // A model or part code written with a hyphen (VR-240, PX-10L, USB-C) is also typed without one.
-const HYPHENATED_CODE = /(?:^|[^\p{L}\p{N}])(\p{L}+)[-‐‑–](\p{N}[\p{L}\p{N}]*|\p{L})(?![\p{L}\p{N}])/gu
+/** The definition; `joinedCodes` gives the same matches without running it over the whole text. */
+export const HYPHENATED_CODE = /(?:^|[^\p{L}\p{N}])(\p{L}+)[-‐‑–](\p{N}[\p{L}\p{N}]*|\p{L})(?![\p{L}\p{N}])/gu
+const HYPHEN = /[-‐‑–]/g
+const SURROGATE = /[\uD800-\uDFFF]/
+const ANY_LETTER = /\p{L}/u
+const ANY_DIGIT = /\p{N}/u
 
-/** The joined forms of hyphenated codes in a text: "VR-240" → "VR240", "USB-C" → "USBC". */
+function isLetter(c: number, text: string, at: number): boolean {
+  if (c < 128) return (c >= 65 && c <= 90) || (c >= 97 && c <= 122)
+  return ANY_LETTER.test(text[at]!)
+}
+function isDigit(c: number, text: string, at: number): boolean {
+  if (c < 128) return c >= 48 && c <= 57
+  return ANY_DIGIT.test(text[at]!)
+}
+
+/**
+ * The joined forms of hyphenated codes in a text: "VR-240" → "VR240", "USB-C" → "USBC". The
+ * matches of HYPHENATED_CODE, found by looking around each hyphen (several times faster on long
+ * text; the unit tests hold the two equal).
+ */
 export function joinedCodes(text: string): string[] {
   const out: string[] = []
-  for (const m of text.matchAll(HYPHENATED_CODE)) out.push(m[1]! + m[2]!)
+  if (SURROGATE.test(text)) {
+    for (const m of text.matchAll(HYPHENATED_CODE)) out.push(m[1]! + m[2]!)
+    return out
+  }
+  const code = (at: number): number => (at >= 0 && at < text.length ? text.charCodeAt(at) : -1)
+  const letter = (at: number): boolean => isLetter(code(at), text, at)
+  const alnum = (at: number): boolean => { const c = code(at); return c >= 0 && (isLetter(c, text, at) || isDigit(c, text, at)) }
+  let lastEnd = 0
+  for (const m of text.matchAll(HYPHEN)) {
+    const i = m.index
+    if (i < lastEnd) continue
+    let a = i
+    while (a > 0 && letter(a - 1)) a--
+    if (a === i) continue
+    // Before the letters: the start of the text, or a character that is neither letter nor
+    // digit and not already part of the previous match.
+    if (a > 0 ? alnum(a - 1) || a - 1 < lastEnd : lastEnd > 0) continue
+    const j = i + 1
+    let end: number
+    if (j < text.length && isDigit(code(j), text, j)) {
+      end = j + 1
+      while (alnum(end)) end++
+    } else if (letter(j) && !alnum(j + 1)) {
+      end = j + 1
+    } else continue
+    out.push(text.slice(a, i) + text.slice(j, end))
+    lastEnd = end
+  }
   return out
 }
 
