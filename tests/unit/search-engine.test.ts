@@ -1,7 +1,7 @@
 import fc from 'fast-check'
 import { beforeEach, describe, expect, it } from 'vitest'
 import { generateCorpus } from '../../server/services/search/corpus'
-import { EVIDENCE_WEIGHT, ProcedureSearchIndex, SEARCH_LIMITS, type SearchDocument, type SearchHit, type SearchVocabulary } from '../../server/services/search/engine'
+import { EVIDENCE_WEIGHT, ProcedureSearchIndex, SEARCH_LIMITS, buildHighlightPattern, highlightStems, stemWords, type SearchDocument, type SearchHit, type SearchVocabulary } from '../../server/services/search/engine'
 import { HYPHENATED_CODE, QUERY_LIMITS, joinedCodes, parseQuery, stemWord, toIndexTerm } from '../../server/services/search/query'
 
 // A small hand-written library. Expected results below follow from what each document says
@@ -459,5 +459,29 @@ describe('joinedCodes', () => {
     fc.assert(fc.property(fc.array(alphabet, { maxLength: 40 }).map(a => a.join('')), text => {
       expect(joinedCodes(text)).toEqual(reference(text))
     }), { numRuns: 2000 })
+  })
+})
+
+describe('stemWords', () => {
+  // The indexOf scan must find exactly the words the highlight pattern finds.
+  const viaPattern = (lower: string, stems: string[]) => {
+    const pattern = buildHighlightPattern(stems, false)
+    return pattern ? [...lower.matchAll(pattern)].map(m => [m.index, m.index + m[0].length]) : []
+  }
+  it('finds the words the highlight pattern finds', () => {
+    const cases: Array<[string, string[]]> = [
+      ['the dimmer flickers; flicker-free dimmers', ['flicker', 'dimmer']],
+      ["it's o’clock, clocks and o'clock", ['clock', 'o']],
+      ['batteries and battery', ['battery']],
+      ['ωmega ω-mega', ['ω']],
+      ['aaaa', ['a', 'aa']],
+    ]
+    for (const [text, terms] of cases) expect(stemWords(text, highlightStems(terms)), text).toEqual(viaPattern(text, [...highlightStems(terms)]))
+    const alphabet = fc.constantFrom('a', 'b', 'y', 'ie', 's', ' ', '-', "'", '’', 'é', '1', '𝔡')
+    const text = fc.array(alphabet, { maxLength: 60 }).map(a => a.join(''))
+    const stems = fc.uniqueArray(fc.array(fc.constantFrom('a', 'b', 'y', 'ie', 's', 'é'), { minLength: 1, maxLength: 3 }).map(a => a.join('')), { minLength: 1, maxLength: 4 })
+    fc.assert(fc.property(text, stems, (t, st) => {
+      expect(stemWords(t, highlightStems(st))).toEqual(viaPattern(t, [...highlightStems(st)]))
+    }), { numRuns: 3000 })
   })
 })

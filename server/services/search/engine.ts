@@ -1447,14 +1447,25 @@ export class ProcedureSearchIndex {
     // character's lowercase is longer, as with "İ"; then fold instead).
     const lower = text.toLowerCase()
     const folded = lower.length === text.length
-    const pattern = this.highlightPattern(matched, !folded)
-    if (!pattern) return null
     const found: Array<{ start: number; end: number; term: string }> = []
-    for (const m of (folded ? lower : text).matchAll(pattern)) {
-      const term = this.termOf(m[0])
-      if (term === null || !matched.has(term)) continue
-      found.push({ start: m.index, end: m.index + m[0].length, term })
-      if (found.length === MAX_TEXT_MATCHES) break
+    if (folded) {
+      // The words that begin with a matched stem, found with indexOf: the same words the
+      // pattern finds (`buildHighlightPattern`), several times faster on long text.
+      for (const [start, end] of stemWords(lower, highlightStems(matched))) {
+        const term = this.termOf(text.slice(start, end))
+        if (term === null || !matched.has(term)) continue
+        found.push({ start, end, term })
+        if (found.length === MAX_TEXT_MATCHES) break
+      }
+    } else {
+      const pattern = this.highlightPattern(matched, true)
+      if (!pattern) return null
+      for (const m of text.matchAll(pattern)) {
+        const term = this.termOf(m[0])
+        if (term === null || !matched.has(term)) continue
+        found.push({ start: m.index, end: m.index + m[0].length, term })
+        if (found.length === MAX_TEXT_MATCHES) break
+      }
     }
     if (found.length === 0) return null
     let best = 0
@@ -1566,14 +1577,66 @@ function escapeRegExp(s: string): string {
 }
 
 /**
- * A pattern finding the words that may index to one of the terms (confirmed afterwards).
- * Negations are left out of body text: "not" is in every other sentence there.
+ * What a word must begin with to index to one of the terms (confirmed afterwards): the stem,
+ * bar a final y (y → ies). Negations are left out of body text: "not" is in every other
+ * sentence there.
  */
-function buildHighlightPattern(terms: readonly string[], foldCase: boolean): RegExp | null {
-  const alternatives = new Set<string>()
-  for (const term of terms) {
-    if (term !== NEGATION_TERM) alternatives.add(escapeRegExp(term.length > 3 && term.endsWith('y') ? term.slice(0, -1) : term))
+export function highlightStems(terms: Iterable<string>): Set<string> {
+  const stems = new Set<string>()
+  for (const term of terms) if (term !== NEGATION_TERM) stems.add(term.length > 3 && term.endsWith('y') ? term.slice(0, -1) : term)
+  return stems
+}
+
+const WORD_CHAR = /[\p{L}\p{N}]/u
+function isWordCharAt(text: string, at: number): boolean {
+  const c = text.charCodeAt(at)
+  if (c < 128) return (c >= 48 && c <= 57) || (c >= 65 && c <= 90) || (c >= 97 && c <= 122)
+  // A letter outside the BMP is two code units; either half stands for the whole.
+  if (c >= 0xd800 && c <= 0xdfff) return WORD_CHAR.test(c <= 0xdbff ? text.slice(at, at + 2) : text.slice(at - 1, at + 1))
+  return WORD_CHAR.test(text[at]!)
+}
+
+/** The end of a word from `at`: letters and digits, then any run of apostrophe + letters (it's, o’clock). */
+function wordEndFrom(text: string, at: number): number {
+  let i = at
+  while (i < text.length && isWordCharAt(text, i)) i++
+  for (;;) {
+    const c = text[i]
+    if ((c === "'" || c === '’' || c === 'ʼ') && i + 1 < text.length && isWordCharAt(text, i + 1)) {
+      i++
+      while (i < text.length && isWordCharAt(text, i)) i++
+    } else return i
   }
+}
+
+/**
+ * Where the words beginning with one of the stems are in lowercase text, left to right and not
+ * overlapping: the matches of `buildHighlightPattern(stems)`, found with indexOf.
+ */
+export function stemWords(lower: string, stems: Set<string>): Array<[number, number]> {
+  const starts = new Map<number, number>()
+  for (const stem of stems) {
+    if (stem === '') continue
+    for (let at = lower.indexOf(stem); at >= 0; at = lower.indexOf(stem, at + 1)) {
+      if (at > 0 && isWordCharAt(lower, at - 1)) continue
+      if (!starts.has(at)) starts.set(at, wordEndFrom(lower, at + stem.length))
+    }
+  }
+  const out: Array<[number, number]> = []
+  let scanned = 0
+  for (const start of [...starts.keys()].sort((a, b) => a - b)) {
+    if (start < scanned) continue
+    const end = starts.get(start)!
+    out.push([start, end])
+    scanned = end
+  }
+  return out
+}
+
+/** The pattern form of `highlightStems`, for text whose lowercase changes its length. */
+export function buildHighlightPattern(terms: Iterable<string>, foldCase: boolean): RegExp | null {
+  const alternatives = new Set<string>()
+  for (const stem of highlightStems(terms)) alternatives.add(escapeRegExp(stem))
   if (alternatives.size === 0) return null
   const body = [...alternatives].sort((a, b) => b.length - a.length).join('|')
   return new RegExp(`(?<![\\p{L}\\p{N}])(?:${body})[\\p{L}\\p{N}]*(?:['’ʼ][\\p{L}\\p{N}]+)*`, foldCase ? 'giu' : 'gu')
