@@ -6,8 +6,10 @@ const alias = {
   '~~': fileURLToPath(new URL('.', import.meta.url)),
 }
 
-// Three projects: pure functions, HTTP against the running app + MariaDB, and the
-// browser. `npm test` (scripts/test.ts) provisions the services before vitest starts.
+// Four projects, run in this order (sequence.groupOrder): pure functions, HTTP against the
+// running app + MariaDB, the browser, and last the random-input fuzzing of every route (last
+// because what random requests happen to change must not surprise the other tests).
+// `npm test` (scripts/test.ts) provisions the services before vitest starts.
 export default defineConfig({
   resolve: { alias },
   test: {
@@ -18,7 +20,7 @@ export default defineConfig({
     projects: [
       {
         resolve: { alias },
-        test: { name: 'unit', include: ['tests/unit/**/*.test.ts'], environment: 'node' },
+        test: { name: 'unit', include: ['tests/unit/**/*.test.ts'], environment: 'node', sequence: { groupOrder: 0 } },
       },
       {
         resolve: { alias },
@@ -26,6 +28,7 @@ export default defineConfig({
           name: 'api',
           include: ['tests/api/**/*.test.ts'],
           environment: 'node',
+          sequence: { groupOrder: 1 },
           testTimeout: 30_000,
           hookTimeout: 60_000,
           fileParallelism: false,
@@ -37,8 +40,21 @@ export default defineConfig({
           name: 'e2e',
           include: ['tests/e2e/**/*.test.ts'],
           environment: 'node',
+          sequence: { groupOrder: 2 },
           testTimeout: 90_000,
           hookTimeout: 90_000,
+          fileParallelism: false,
+        },
+      },
+      {
+        resolve: { alias },
+        test: {
+          name: 'fuzz',
+          include: ['tests/fuzz/**/*.test.ts'],
+          environment: 'node',
+          sequence: { groupOrder: 3 },
+          testTimeout: 300_000,
+          hookTimeout: 60_000,
           fileParallelism: false,
         },
       },

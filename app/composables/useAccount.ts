@@ -1,5 +1,5 @@
 import type { UserDto } from '#shared/types/auth'
-import { roleAtLeast, type Role } from '#shared/types/auth'
+import { roleAtLeast, type Role } from '#shared/types/roles'
 
 /** The signed-in person (name and e-mail from /api/me; role from the session). */
 export function useAccount() {

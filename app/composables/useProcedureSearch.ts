@@ -1,6 +1,6 @@
 import { onScopeDispose, ref, shallowRef, toValue, watch, type MaybeRefOrGetter } from 'vue'
 import type { LocationQuery, LocationQueryRaw } from 'vue-router'
-import { HAZARDS, type Hazard } from '#shared/types/procedure'
+import { HAZARDS, type Hazard } from '#shared/types/hazards'
 
 // The answer of GET /api/search as the browser sees it (server/api/search.get.ts shapes it).
 

@@ -1,4 +1,4 @@
-import { roleAtLeast, type Role } from '#shared/types/auth'
+import { roleAtLeast, type Role } from '#shared/types/roles'
 
 const PUBLIC = [/^\/login$/, /^\/invite\//]
 

@@ -1,5 +1,6 @@
 import { defineStore } from 'pinia'
 import { computed, ref, watch } from 'vue'
+import { serialSave } from '../utils/serialSave'
 import type { CauseContent, RevisionContent, StepContent } from '#shared/types/procedure'
 import { OUTCOME_LABELS, type EvidenceCauseDto, type Outcome, type RecordDto } from '#shared/types/records'
 import { evaluateReading, type ReadingVerdict } from '#shared/utils/readings'
@@ -218,8 +219,6 @@ export const useBenchRecordStore = defineStore('benchRecord', () => {
   const savedJson = ref('')
   const seenJson = ref('')
   let timer: ReturnType<typeof setTimeout> | undefined
-  let inflight: Promise<boolean> | null = null
-  let again = false
 
   const open = computed(() => record.value?.status === 'in_progress')
   const editable = computed(() => open.value && record.value?.can.edit === true)
@@ -330,29 +329,16 @@ export const useBenchRecordStore = defineStore('benchRecord', () => {
   }
 
   /** Saves now (or once more after the save in flight); resolves to whether it worked. */
+  const saver = serialSave(() => patchOnce())
   function save(): Promise<boolean> {
     clearTimeout(timer)
-    if (inflight) {
-      again = true
-      return inflight
-    }
-    inflight = (async () => {
-      let ok: boolean
-      do {
-        again = false
-        ok = await patchOnce()
-      } while (ok && again)
-      return ok
-    })().finally(() => {
-      inflight = null
-    })
-    return inflight
+    return saver.save()
   }
 
   /** Waits until every change is on the server; false when it could not be saved. */
   async function flush(): Promise<boolean> {
     if (conflict.value) return false
-    if (!dirty.value && !inflight) return true
+    if (!dirty.value && !saver.busy) return true
     const ok = await save()
     return ok && !dirty.value
   }
@@ -363,7 +349,7 @@ export const useBenchRecordStore = defineStore('benchRecord', () => {
    */
   function saveOnLeave() {
     const r = record.value
-    if (!r || !dirty.value || conflict.value || !editable.value || inflight) return
+    if (!r || !dirty.value || conflict.value || !editable.value || saver.busy) return
     clearTimeout(timer)
     void fetch(`/api/records/${r.id}`, {
       method: 'PATCH',

@@ -1,5 +1,6 @@
 import { defineStore } from 'pinia'
 import { computed, ref, toRaw, watch } from 'vue'
+import { serialSave } from '../utils/serialSave'
 import { HAZARDS, RevisionContent, type Hazard } from '#shared/types/procedure'
 import { BASE_UNIT, QUANTITIES, type Quantity } from '#shared/types/measurement'
 import type { AttachmentDto, RevisionDetailDto } from '#shared/types/procedure-api'
@@ -219,8 +220,6 @@ export const useProcedureDraftStore = defineStore('procedureDraft', () => {
   // keeps its inputs (and their focus) while it changes.
   const itemIds = new WeakMap<object, number>()
   let nextItemId = 1
-  let inflight: Promise<boolean> | null = null
-  let again = false
 
   const payload = computed(() => draftPayload(content.value))
   const bodyJson = computed(() => JSON.stringify({ content: payload.value, changeNote: changeNote.value }))
@@ -319,29 +318,16 @@ export const useProcedureDraftStore = defineStore('procedureDraft', () => {
   }
 
   /** Saves now (or once more after the save in flight); resolves to whether it worked. */
+  const saver = serialSave(() => putOnce())
   function save(): Promise<boolean> {
     clearTimeout(timer)
-    if (inflight) {
-      again = true
-      return inflight
-    }
-    inflight = (async () => {
-      let ok: boolean
-      do {
-        again = false
-        ok = await putOnce()
-      } while (ok && again)
-      return ok
-    })().finally(() => {
-      inflight = null
-    })
-    return inflight
+    return saver.save()
   }
 
   /** Waits until every change is on the server; false when it could not be saved. */
   async function flush(): Promise<boolean> {
     if (conflict.value) return false
-    if (!dirty.value && !inflight) return true
+    if (!dirty.value && !saver.busy) return true
     const ok = await save()
     return ok && !dirty.value
   }

@@ -1,4 +1,4 @@
-import type { Role } from '#shared/types/auth'
+import type { Role } from '#shared/types/roles'
 
 export interface NavItem {
   to: string

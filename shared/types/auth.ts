@@ -1,20 +1,6 @@
 import { z } from 'zod'
-
-/** Roles in ascending order: each includes every role before it. */
-export const ROLES = ['technician', 'author', 'editor', 'admin'] as const
-export type Role = (typeof ROLES)[number]
-
-export const ROLE_LABELS: Record<Role, string> = {
-  technician: 'Technician',
-  author: 'Author',
-  editor: 'Editor',
-  admin: 'Admin',
-}
-
-export function roleAtLeast(role: Role | undefined | null, needed: Role): boolean {
-  if (!role) return false
-  return ROLES.indexOf(role) >= ROLES.indexOf(needed)
-}
+import { ROLES } from './roles'
+export { ROLES, ROLE_LABELS, roleAtLeast, type Role } from './roles'
 
 export const PASSWORD_MIN = 12
 

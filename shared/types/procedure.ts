@@ -1,11 +1,9 @@
 import { z } from 'zod'
 import { MeasurementSpec } from './measurement'
 
-export const HAZARDS = ['mains', 'stored_energy', 'heat', 'none'] as const
-export type Hazard = (typeof HAZARDS)[number]
+import { HAZARDS } from './hazards'
 
-/** Hazards that put the caution panel on the reader page. */
-export const CAUTION_HAZARDS: readonly Hazard[] = ['mains', 'stored_energy']
+export { CAUTION_HAZARDS, HAZARDS, type Hazard } from './hazards'
 
 export const REVISION_STATES = ['draft', 'in_review', 'published', 'superseded', 'changes_requested', 'rejected'] as const
 export type RevisionState = (typeof REVISION_STATES)[number]
