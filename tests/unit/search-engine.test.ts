@@ -459,7 +459,7 @@ describe('joinedCodes', () => {
     fc.assert(fc.property(fc.array(alphabet, { maxLength: 40 }).map(a => a.join('')), text => {
       expect(joinedCodes(text)).toEqual(reference(text))
     }), { numRuns: 2000 })
-  })
+  }, 30_000)
 })
 
 describe('stemWords', () => {
@@ -482,6 +482,6 @@ describe('stemWords', () => {
     const stems = fc.uniqueArray(fc.array(fc.constantFrom('a', 'b', 'y', 'ie', 's', 'é'), { minLength: 1, maxLength: 3 }).map(a => a.join('')), { minLength: 1, maxLength: 4 })
     fc.assert(fc.property(text, stems, (t, st) => {
       expect(stemWords(t, highlightStems(st))).toEqual(viaPattern(t, [...highlightStems(st)]))
-    }), { numRuns: 3000 })
-  })
+    }), { numRuns: 1500 })
+  }, 30_000)
 })
