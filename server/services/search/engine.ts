@@ -968,16 +968,20 @@ export class ProcedureSearchIndex {
 
   /** What counting `indexTerms(text, capRepeats)` gives, without the array in between. */
   private countIndexTerms(text: string, capRepeats: boolean): Map<string, number> {
-    const counts = new Map<string, number>()
-    const add = (token: string): void => {
-      const term = this.indexTerm(token)
-      if (term === null) return
-      const n = counts.get(term)
-      if (n === undefined) counts.set(term, 1)
-      else if (!capRepeats || n < MAX_TEXT_TERM_FREQUENCY) counts.set(term, n + 1)
+    // Words counted first, so each distinct word goes through the term function once.
+    const words = new Map<string, number>()
+    const tally = (tokens: string[]): void => {
+      for (const token of tokens) words.set(token, (words.get(token) ?? 0) + 1)
     }
-    for (const token of tokenizeWords(text)) add(token)
-    if (text.includes('-') || text.includes('‑') || text.includes('–') || text.includes('‐')) for (const token of joinedCodes(text)) add(token)
+    tally(tokenizeWords(text))
+    if (text.includes('-') || text.includes('‑') || text.includes('–') || text.includes('‐')) tally(joinedCodes(text))
+    const counts = new Map<string, number>()
+    for (const [token, k] of words) {
+      const term = this.indexTerm(token)
+      if (term === null) continue
+      const n = (counts.get(term) ?? 0) + k
+      counts.set(term, capRepeats ? Math.min(n, MAX_TEXT_TERM_FREQUENCY) : n)
+    }
     return counts
   }
 
