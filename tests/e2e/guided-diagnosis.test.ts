@@ -2,11 +2,10 @@ import { mkdtempSync, rmSync, writeFileSync } from 'node:fs'
 import { tmpdir } from 'node:os'
 import { join } from 'node:path'
 import sharp from 'sharp'
-import type { Page } from 'playwright-core'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { DEMO, DEMO_PASSWORD, signedIn } from '../helpers/api'
 import { makeContent } from '../helpers/content'
-import { BASE_URL, openBrowser, screenshot, signIn, waitForHydration } from '../helpers/browser'
+import { openBrowser, openHydrated, screenshot, signIn, waitForHydration } from '../helpers/browser'
 
 type Browser = Awaited<ReturnType<typeof openBrowser>>
 const WAIT = { timeout: 30_000 }
@@ -16,10 +15,7 @@ const stamp = Date.now().toString(36)
 // its page starts from no records at all and the one closed here is the only one counted.
 let slug = ''
 
-async function open(page: Page, path: string) {
-  await page.goto(`${BASE_URL}${path}`)
-  await waitForHydration(page)
-}
+const open = openHydrated
 
 describe('guided diagnosis at the bench, in Chromium', () => {
   let browser: Browser

@@ -6,7 +6,7 @@ import type { Locator, Page } from 'playwright-core'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { RevisionDetailDto } from '#shared/types/procedure-api'
 import { DEMO, DEMO_PASSWORD, signedIn, type ApiClient } from '../helpers/api'
-import { BASE_URL, openBrowser, screenshot } from '../helpers/browser'
+import { openBrowser, openHydrated, screenshot } from '../helpers/browser'
 
 type Browser = Awaited<ReturnType<typeof openBrowser>>
 
@@ -24,17 +24,8 @@ const FIRST_INSTRUCTION = 'Unplug the unit, discharge the bulk capacitor through
 const SECOND_INSTRUCTION = 'Put the meter on the diode-test range and read the body diode of Q1, red lead on the source, black on the drain.'
 const REVISED_INSTRUCTION = `Meter on the diode-test range: read the body diode of Q1 with the red lead on the source and the black on the drain (revised ${stamp}).`
 
-/**
- * Opens a page and waits until Nuxt has finished hydrating it: a click before that does nothing,
- * and hydration resets inputs typed into early to the form's empty state.
- */
-async function open(page: Page, path: string): Promise<void> {
-  await page.goto(`${BASE_URL}${path}`)
-  await page.waitForFunction(() => {
-    const app = (document.querySelector('#__nuxt') as { __vue_app__?: { $nuxt?: { isHydrating?: boolean } } } | null)?.__vue_app__
-    return app?.$nuxt?.isHydrating === false
-  }, undefined, WAIT)
-}
+// Waits for hydration: a click before that does nothing, and hydration resets inputs typed into early.
+const open = (page: Page, path: string) => openHydrated(page, path, WAIT.timeout)
 
 async function signInAs(page: Page, email: string): Promise<void> {
   // A dev server reloads the page when files change under it; another try or two covers that.

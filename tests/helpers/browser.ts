@@ -41,6 +41,12 @@ export async function waitForHydration(page: Page, timeout = 30_000): Promise<vo
   }, undefined, { timeout })
 }
 
+/** Opens a path of the app and waits until the page has hydrated. */
+export async function openHydrated(page: Page, path: string, timeout = 45_000): Promise<void> {
+  await page.goto(`${BASE_URL}${path}`)
+  await waitForHydration(page, timeout)
+}
+
 export async function signIn(page: Page, email: string, password: string): Promise<void> {
   await page.goto(`${BASE_URL}/login`)
   await waitForHydration(page)
