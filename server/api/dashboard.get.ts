@@ -1,5 +1,5 @@
 import { z } from 'zod'
-import { roleAtLeast } from '#shared/types/auth'
+import { roleAtLeast } from '#shared/types/roles'
 import { dashboard } from '../services/dashboard'
 
 const Query = z.object({ from: z.iso.date().optional(), to: z.iso.date().optional() })

@@ -1,5 +1,5 @@
 import { z } from 'zod'
-import { HAZARDS } from '#shared/types/procedure'
+import { HAZARDS } from '#shared/types/hazards'
 
 // Long or strange input is not an error a technician can fix by retyping, so it is cleaned
 // (parseQuery drops control characters and punctuation, caps terms); only absurd sizes are 400.

@@ -1,7 +1,8 @@
 import { createError } from 'h3'
 import { Op, type Transaction, type WhereOptions } from 'sequelize'
-import { roleAtLeast } from '../../shared/types/auth'
-import { CAUTION_HAZARDS, RevisionContent, type DraftContent, type RevisionState } from '../../shared/types/procedure'
+import { roleAtLeast } from '../../shared/types/roles'
+import { RevisionContent, type DraftContent, type RevisionState } from '../../shared/types/procedure'
+import { CAUTION_HAZARDS } from '../../shared/types/hazards'
 import type {
   AttachmentDto, Paginated, PersonDto, ProcedureListItemDto, ProcedureReadDto, RenderedContent, ReviewCommentDto,
   RevisionDetailDto, RevisionSummaryDto,

@@ -1,6 +1,6 @@
 import { createError } from 'h3'
 import { Op, QueryTypes, type Transaction, type WhereOptions } from 'sequelize'
-import { roleAtLeast } from '../../shared/types/auth'
+import { roleAtLeast } from '../../shared/types/roles'
 import type { MeasurementSpec } from '../../shared/types/measurement'
 import type { RevisionContent } from '../../shared/types/procedure'
 import type { Outcome, ReadingResultDto, RecordDto, RecordListItemDto, RecordListQuery } from '../../shared/types/records'

@@ -1,5 +1,5 @@
 import type { H3Event } from 'h3'
-import { roleAtLeast, ROLE_LABELS, type Role } from '#shared/types/auth'
+import { roleAtLeast, ROLE_LABELS, type Role } from '#shared/types/roles'
 import { User } from '../db'
 
 /**

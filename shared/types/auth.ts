@@ -1,6 +1,5 @@
 import { z } from 'zod'
 import { ROLES, type Role } from './roles'
-export { ROLES, ROLE_LABELS, roleAtLeast, type Role } from './roles'
 
 export const PASSWORD_MIN = 12
 

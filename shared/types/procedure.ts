@@ -1,9 +1,7 @@
 import { z } from 'zod'
+import { HAZARDS } from './hazards'
 import { MeasurementSpec } from './measurement'
 
-import { HAZARDS } from './hazards'
-
-export { CAUTION_HAZARDS, HAZARDS, type Hazard } from './hazards'
 
 export const REVISION_STATES = ['draft', 'in_review', 'published', 'superseded', 'changes_requested', 'rejected'] as const
 export type RevisionState = (typeof REVISION_STATES)[number]

@@ -1,7 +1,7 @@
 // Role × route matrix over every route file in server/api (ASVS 5.0 V8.2.2, OWASP WSTG-ATHZ):
 // each role and an anonymous caller against each route; a new route without an entry here fails.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { ROLES, type Role } from '../../shared/types/auth'
+import { ROLES, type Role } from '../../shared/types/roles'
 import { ApiClient, DEMO, signedIn } from '../helpers/api'
 import { listApiRoutes, routeKey } from '../helpers/routes'
 

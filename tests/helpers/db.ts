@@ -1,7 +1,7 @@
 import { randomBytes } from 'node:crypto'
 import { Hash } from '@adonisjs/hash'
 import { Scrypt } from '@adonisjs/hash/drivers/scrypt'
-import type { Role } from '../../shared/types/auth'
+import type { Role } from '../../shared/types/roles'
 import { dbConfigFromEnv, initDatabase, LoginFailure, User } from '../../server/db'
 
 /** Direct database access for arranging fixtures and checking what was stored. */

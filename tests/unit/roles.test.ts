@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest'
-import { roleAtLeast, ROLES } from '../../shared/types/auth'
+import { roleAtLeast, ROLES } from '../../shared/types/roles'
 
 describe('roles include the ones below them', () => {
   it.each([

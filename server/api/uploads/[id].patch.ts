@@ -1,4 +1,4 @@
-import { roleAtLeast } from '#shared/types/auth'
+import { roleAtLeast } from '#shared/types/roles'
 import { z } from 'zod'
 import { Attachment } from '../../db'
 

@@ -1,5 +1,5 @@
 import { DataTypes, Model, type CreationOptional, type InferAttributes, type InferCreationAttributes, type Sequelize } from 'sequelize'
-import { ROLES, type Role } from '../../../shared/types/auth'
+import { ROLES, type Role } from '../../../shared/types/roles'
 
 export class Invitation extends Model<InferAttributes<Invitation>, InferCreationAttributes<Invitation>> {
   declare id: CreationOptional<number>

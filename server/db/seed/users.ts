@@ -1,6 +1,6 @@
 import { Hash } from '@adonisjs/hash'
 import { Scrypt } from '@adonisjs/hash/drivers/scrypt'
-import type { Role } from '../../../shared/types/auth'
+import type { Role } from '../../../shared/types/roles'
 import { User } from '../models'
 
 /** Demo-only password of every demo account (README.md says so). */
