@@ -328,20 +328,9 @@ export const useBenchRecordStore = defineStore('benchRecord', () => {
     }
   }
 
-  /** Saves now (or once more after the save in flight); resolves to whether it worked. */
-  const saver = serialSave(() => patchOnce())
-  function save(): Promise<boolean> {
-    clearTimeout(timer)
-    return saver.save()
-  }
-
-  /** Waits until every change is on the server; false when it could not be saved. */
-  async function flush(): Promise<boolean> {
-    if (conflict.value) return false
-    if (!dirty.value && !saver.busy) return true
-    const ok = await save()
-    return ok && !dirty.value
-  }
+  /** `save`: now, or once more after the save in flight; `flush`: until every change is on the server. */
+  const saver = serialSave(() => patchOnce(), { dirty: () => dirty.value, blocked: () => Boolean(conflict.value), beforeSave: () => clearTimeout(timer) })
+  const { save, flush } = saver
 
   /**
    * Last-chance save when the page goes away (tab closed, phone locked): a keepalive request

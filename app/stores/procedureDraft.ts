@@ -318,20 +318,9 @@ export const useProcedureDraftStore = defineStore('procedureDraft', () => {
     }
   }
 
-  /** Saves now (or once more after the save in flight); resolves to whether it worked. */
-  const saver = serialSave(() => putOnce())
-  function save(): Promise<boolean> {
-    clearTimeout(timer)
-    return saver.save()
-  }
-
-  /** Waits until every change is on the server; false when it could not be saved. */
-  async function flush(): Promise<boolean> {
-    if (conflict.value) return false
-    if (!dirty.value && !saver.busy) return true
-    const ok = await save()
-    return ok && !dirty.value
-  }
+  /** `save`: now, or once more after the save in flight; `flush`: until every change is on the server. */
+  const saver = serialSave(() => putOnce(), { dirty: () => dirty.value, blocked: () => Boolean(conflict.value), beforeSave: () => clearTimeout(timer) })
+  const { save, flush } = saver
 
   /** Conflict: write this tab's version over the one saved elsewhere. */
   async function keepMine(): Promise<boolean> {
