@@ -1,5 +1,6 @@
 import { defineStore } from 'pinia'
 import { computed, ref, watch } from 'vue'
+import { saveFailure } from '../utils/apiError'
 import { serialSave } from '../utils/serialSave'
 import type { CauseContent, RevisionContent, StepContent } from '#shared/types/procedure'
 import { OUTCOME_LABELS, type EvidenceCauseDto, type Outcome, type RecordDto } from '#shared/types/records'
@@ -47,14 +48,6 @@ export interface LikelyCause {
 
 export type RecordSaveStatus = 'saved' | 'pending' | 'saving' | 'failed' | 'conflict'
 
-interface ApiError { statusCode?: number, status?: number, data?: { message?: string, data?: { current?: RecordDto, fields?: Record<string, string> } } }
-
-export function apiErrorMessage(error: unknown, fallback: string): string {
-  return (error as ApiError).data?.message ?? fallback
-}
-export function apiErrorFields(error: unknown): Record<string, string> {
-  return (error as ApiError).data?.data?.fields ?? {}
-}
 
 function emptyWork(): BenchWork {
   return { unit: { model: '', serial: '', jobRef: '' }, steps: {}, notes: '', photos: [] }
@@ -311,16 +304,9 @@ export const useBenchRecordStore = defineStore('benchRecord', () => {
       return true
     }
     catch (error) {
-      const e = error as ApiError
-      const code = e.statusCode ?? e.status
-      const current = e.data?.data?.current
-      if (code === 409 && current) {
-        conflict.value = { mine: sent, theirs: current }
-        failure.value = ''
-      }
-      else {
-        failure.value = code === undefined ? 'The server could not be reached.' : apiErrorMessage(error, `The server answered ${code}.`)
-      }
+      const why = saveFailure<RecordDto>(error)
+      if ('current' in why) conflict.value = { mine: sent, theirs: why.current }
+      failure.value = 'current' in why ? '' : why.message
       return false
     }
     finally {

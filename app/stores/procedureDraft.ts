@@ -1,5 +1,6 @@
 import { defineStore } from 'pinia'
 import { computed, ref, toRaw, watch } from 'vue'
+import { apiErrorFields, apiErrorMessage, saveFailure } from '../utils/apiError'
 import { serialSave } from '../utils/serialSave'
 import { RevisionContent } from '#shared/types/procedure'
 import { HAZARDS, type Hazard } from '#shared/types/hazards'
@@ -55,8 +56,6 @@ export type DraftAttachment = Pick<AttachmentDto, 'id' | 'url' | 'thumbnailUrl' 
 export type SaveStatus = 'saved' | 'pending' | 'saving' | 'failed' | 'conflict'
 
 export interface DraftVersion { content: DraftContent, changeNote: string }
-
-interface ApiError { statusCode?: number, status?: number, data?: { message?: string, data?: { fields?: Record<string, string>, current?: RevisionDetailDto } } }
 
 export const DEFAULT_PRIOR = 0.2
 
@@ -182,10 +181,6 @@ function moveWithin<T>(items: T[], from: number, to: number): void {
   items.splice(to, 0, item as T)
 }
 
-function apiMessage(error: unknown, fallback: string): string {
-  return (error as ApiError).data?.message ?? fallback
-}
-
 /**
  * The draft open in the editor, shared by every part of the form. Each change is saved
  * SAVE_DELAY_MS after the last one with the draft's save counter (`version`); a stale counter
@@ -298,19 +293,10 @@ export const useProcedureDraftStore = defineStore('procedureDraft', () => {
       return true
     }
     catch (error) {
-      const e = error as ApiError
-      const code = e.statusCode ?? e.status
-      const current = e.data?.data?.current
-      if (code === 409 && current) {
-        conflict.value = { mine: sent, theirs: current }
-        failure.value = ''
-      }
-      else {
-        failure.value = code === undefined
-          ? 'The server could not be reached.'
-          : apiMessage(error, `The server answered ${code}.`)
-        if (e.data?.data?.fields) serverErrors.value = e.data.data.fields
-      }
+      const why = saveFailure<RevisionDetailDto>(error)
+      if ('current' in why) conflict.value = { mine: sent, theirs: why.current }
+      else if (Object.keys(why.fields).length) serverErrors.value = why.fields
+      failure.value = 'current' in why ? '' : why.message
       return false
     }
     finally {
@@ -504,9 +490,9 @@ export const useProcedureDraftStore = defineStore('procedureDraft', () => {
       return { ok: true, number: res.revision.number }
     }
     catch (error) {
-      const fields = (error as ApiError).data?.data?.fields
-      if (fields) serverErrors.value = fields
-      return { ok: false, message: apiMessage(error, 'The revision could not be submitted.') }
+      const fields = apiErrorFields(error)
+      if (Object.keys(fields).length) serverErrors.value = fields
+      return { ok: false, message: apiErrorMessage(error, 'The revision could not be submitted.') }
     }
   }
 
