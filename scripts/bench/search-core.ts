@@ -34,7 +34,9 @@ const gc = vm.runInNewContext('gc') as () => void
 const heapUsed = (): number => {
   gc()
   gc()
-  return process.memoryUsage().heapUsed
+  // The postings live in typed arrays, outside the JS heap proper: counted too.
+  const { heapUsed, arrayBuffers } = process.memoryUsage()
+  return heapUsed + arrayBuffers
 }
 const mb = (bytes: number): string => `${(bytes / 1024 / 1024).toFixed(1)} MB`
 const quantile = (sorted: number[], q: number): number => sorted[Math.min(sorted.length - 1, Math.floor(q * sorted.length))] ?? NaN

@@ -17,7 +17,9 @@ const gc = vm.runInNewContext('gc') as () => void
 const heap = () => {
   gc()
   gc()
-  return process.memoryUsage().heapUsed
+  // The postings live in typed arrays, outside the JS heap proper: counted too.
+  const { heapUsed, arrayBuffers } = process.memoryUsage()
+  return heapUsed + arrayBuffers
 }
 
 const corpus = generateCorpus(N, 42)
@@ -57,6 +59,10 @@ try {
     heapDelta = heap() - before
   }
   const buildMs = Math.min(...builds)
+  // What a server does at start (ProcedureSearchIndex.buildAsync, chunks of 100).
+  const asyncStart = performance.now()
+  await new ProcedureSearchIndex(corpus.vocabulary).buildAsync(docs, { chunkSize: 100 })
+  const asyncMs = performance.now() - asyncStart
   // Side by side: MiniSearch with default settings over four text fields of the same documents
   // (what the quality target's anchor measured), so the ratio holds on a slower or busier machine.
   const plainDocs = docs.map(d => ({ id: d.id, title: d.title, symptoms: d.symptoms.map(x => x.name).join(' '), causes: d.causes.map(c => c.name).join(' '), text: d.text }))
@@ -98,9 +104,10 @@ try {
   const pct = (x: number) => x.toFixed(3)
   console.log(`\nBenchlore search benchmark — ${N.toLocaleString('en')} synthetic procedures, ${n} labelled queries (${[...new Set(queries.map(q => q.kind))].join(', ')}); load ${(loadMs / 1000).toFixed(1)} s into MariaDB; ${os.cpus().length} CPUs, load avg ${os.loadavg()[0]!.toFixed(2)}\n`)
   row('', 'Benchlore', 'MariaDB FULLTEXT')
-  row('index build', `${buildMs.toFixed(0)} ms`, '(at insert)', `≤ 3000 ms ${buildMs <= 3000 ? '✓' : '✗'}`)
+  row('index build', `${buildMs.toFixed(0)} ms`, '(at insert)', `≤ 3000 ms ${buildMs <= 3000 ? '✓' : '✗'} (best of ${builds.map(b => b.toFixed(0)).join(' / ')} ms)`)
+  row('  as the server builds', `${asyncMs.toFixed(0)} ms`, '', 'in chunks of 100, yielding to the event loop between them')
   row('  default MiniSearch build', `${plainBuildMs.toFixed(0)} ms`, '', `4 fields, same docs; Benchlore/default ${(buildMs / plainBuildMs).toFixed(2)}×`)
-  row('index heap', `${(heapDelta / 1048576).toFixed(0)} MB`, '(in server)', `≤ 150 MB ${heapDelta / 1048576 <= 150 ? '✓' : '✗'}`)
+  row('index memory', `${(heapDelta / 1048576).toFixed(0)} MB`, '(in server)', `≤ 150 MB ${heapDelta / 1048576 <= 150 ? '✓' : '✗'} (JS heap + typed arrays)`)
   row('latency p50', `${m.p50.toFixed(2)} ms`, `${f.p50.toFixed(2)} ms`, `≤ 5 ms ${m.p50 <= 5 ? '✓' : '✗'}`)
   row('latency p95', `${m.p95.toFixed(2)} ms`, `${f.p95.toFixed(2)} ms`, `≤ 20 ms ${m.p95 <= 20 ? '✓' : '✗'}`)
   row('latency max', `${m.max.toFixed(2)} ms`, `${f.max.toFixed(2)} ms`)

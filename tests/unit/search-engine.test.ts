@@ -1,5 +1,5 @@
 import fc from 'fast-check'
-import { beforeEach, describe, expect, it } from 'vitest'
+import { beforeEach, describe, expect, it, vi } from 'vitest'
 import { generateCorpus } from '../../server/services/search/corpus'
 import { EVIDENCE_WEIGHT, ProcedureSearchIndex, SEARCH_LIMITS, buildHighlightPattern, highlightStems, stemWords, type SearchDocument, type SearchHit, type SearchVocabulary } from '../../server/services/search/engine'
 import { HYPHENATED_CODE, QUERY_LIMITS, joinedCodes, parseQuery, stemWord, toIndexTerm } from '../../server/services/search/query'
@@ -417,12 +417,35 @@ describe('ProcedureSearchIndex: agreement with MiniSearch', () => {
     bulk.build(corpus.docs)
     const single = new ProcedureSearchIndex(corpus.vocabulary)
     for (const d of corpus.docs) single.upsert(d)
+    // The index itself: every posting, field length and average.
+    const [a, b] = [bulk.snapshot(), single.snapshot()]
+    expect(Object.keys(a.postings).length).toBeGreaterThan(3000)
+    expect(a).toEqual(b)
     for (const { q } of corpus.queries.slice(0, 40)) {
       const a = bulk.search({ q, limit: 50 })
       const b = single.search({ q, limit: 50 })
       expect(ids(a.hits), q).toEqual(ids(b.hits))
       a.hits.forEach((h, i) => expect(h.score).toBeCloseTo(b.hits[i]!.score, 9))
     }
+  }, 30_000)
+
+  it('discards and replaces in a bulk-built index, and its vacuum leaves what a fresh build holds', async () => {
+    const corpus = generateCorpus(300, 5)
+    const index = new ProcedureSearchIndex(corpus.vocabulary)
+    index.build(corpus.docs)
+    const kept = corpus.docs.filter((d) => d.id % 3 !== 0)
+    for (const d of corpus.docs) if (d.id % 3 === 0) index.discard(d.id)
+    const edited = kept.map((d, i) => (i % 5 === 0 ? { ...d, title: `${d.title} revised`, text: `${d.text} Check the snubber capacitor again.` } : d))
+    for (const [i, d] of edited.entries()) if (i % 5 === 0) index.upsert(d)
+    const fresh = new ProcedureSearchIndex(corpus.vocabulary)
+    fresh.build(edited)
+    // MiniSearch vacuums discarded postings in the background, in batches.
+    await vi.waitFor(() => expect(index.snapshot().lingering).toBe(0), { timeout: 10_000, interval: 20 })
+    const [a, b] = [index.snapshot(), fresh.snapshot()]
+    expect(a.postings).toEqual(b.postings)
+    expect(a.fieldLengths).toEqual(b.fieldLengths)
+    a.averages.forEach((avg, f) => expect(avg).toBeCloseTo(b.averages[f]!, 9))
+    for (const { q } of corpus.queries.slice(0, 30)) expect(ids(index.search({ q, limit: 50 }).hits), q).toEqual(ids(fresh.search({ q, limit: 50 }).hits))
   }, 30_000)
 
   // The fast path scores only candidates; MiniSearch 7.2's own search() is the reference
