@@ -1,7 +1,7 @@
 import { defineStore } from 'pinia'
 import { computed, ref, watch } from 'vue'
 import { saveFailure } from '../utils/apiError'
-import { serialSave } from '../utils/serialSave'
+import { saveStatusOf, serialSave } from '../utils/serialSave'
 import type { CauseContent, RevisionContent, StepContent } from '#shared/types/procedure'
 import { OUTCOME_LABELS, type EvidenceCauseDto, type Outcome, type RecordDto } from '#shared/types/records'
 import { evaluateReading, type ReadingVerdict } from '#shared/utils/readings'
@@ -46,7 +46,6 @@ export interface LikelyCause {
   raisedBy: RaisingReading[]
 }
 
-export type RecordSaveStatus = 'saved' | 'pending' | 'saving' | 'failed' | 'conflict'
 
 
 function emptyWork(): BenchWork {
@@ -226,12 +225,7 @@ export const useBenchRecordStore = defineStore('benchRecord', () => {
   const bodyJson = computed(() => JSON.stringify(body.value))
   const dirty = computed(() => seenJson.value !== savedJson.value)
 
-  const status = computed<RecordSaveStatus>(() => {
-    if (conflict.value) return 'conflict'
-    if (saving.value) return 'saving'
-    if (failure.value) return 'failed'
-    return dirty.value ? 'pending' : 'saved'
-  })
+  const status = computed(() => saveStatusOf({ conflict: conflict.value, saving: saving.value, failure: failure.value, dirty: dirty.value }))
 
   /** Verdicts of every step that has a measurement, as typed now. */
   const readings = computed<Record<string, StepReading>>(() => {

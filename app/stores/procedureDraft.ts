@@ -1,7 +1,7 @@
 import { defineStore } from 'pinia'
 import { computed, ref, toRaw, watch } from 'vue'
 import { apiErrorFields, apiErrorMessage, saveFailure } from '../utils/apiError'
-import { serialSave } from '../utils/serialSave'
+import { saveStatusOf, serialSave } from '../utils/serialSave'
 import { RevisionContent } from '#shared/types/procedure'
 import { HAZARDS, type Hazard } from '#shared/types/hazards'
 import { BASE_UNIT, QUANTITIES, type Quantity } from '#shared/types/measurement'
@@ -53,7 +53,6 @@ export interface DraftContent {
 /** A stored image as the editor needs it (an upload answers without mime, bytes or caption). */
 export type DraftAttachment = Pick<AttachmentDto, 'id' | 'url' | 'thumbnailUrl' | 'width' | 'height'> & Partial<Pick<AttachmentDto, 'mime' | 'bytes'>> & { caption: string }
 
-export type SaveStatus = 'saved' | 'pending' | 'saving' | 'failed' | 'conflict'
 
 export interface DraftVersion { content: DraftContent, changeNote: string }
 
@@ -221,12 +220,7 @@ export const useProcedureDraftStore = defineStore('procedureDraft', () => {
   const bodyJson = computed(() => JSON.stringify({ content: payload.value, changeNote: changeNote.value }))
   const dirty = computed(() => seenJson.value !== savedJson.value)
 
-  const status = computed<SaveStatus>(() => {
-    if (conflict.value) return 'conflict'
-    if (saving.value) return 'saving'
-    if (failure.value) return 'failed'
-    return dirty.value ? 'pending' : 'saved'
-  })
+  const status = computed(() => saveStatusOf({ conflict: conflict.value, saving: saving.value, failure: failure.value, dirty: dirty.value }))
 
   const clientErrors = computed<Record<string, string>>(() => {
     const parsed = RevisionContent.safeParse(payload.value)

@@ -43,3 +43,13 @@ export function serialSave(once: () => Promise<boolean>, opts: { dirty: () => bo
     },
   }
 }
+
+/** What an autosaving form tells its user, the most pressing first. */
+export type SaveStatus = 'saved' | 'pending' | 'saving' | 'failed' | 'conflict'
+
+export function saveStatusOf(state: { conflict: unknown, saving: boolean, failure: unknown, dirty: boolean }): SaveStatus {
+  if (state.conflict) return 'conflict'
+  if (state.saving) return 'saving'
+  if (state.failure) return 'failed'
+  return state.dirty ? 'pending' : 'saved'
+}
