@@ -123,7 +123,8 @@ async function labelsOf(content: RevisionContent | DraftContent) {
     content.deviceType ? DeviceType.findOne({ where: { slug: content.deviceType } }) : null,
     content.symptoms?.length ? Symptom.findAll({ where: { slug: content.symptoms } }) : [],
   ])
-  const targets = await Symptom.findAll({ where: { id: symptoms.map(s => s.mergedIntoId).filter((x): x is number => !!x) } })
+  const mergedIds = symptoms.map(s => s.mergedIntoId).filter((x): x is number => !!x)
+  const targets = mergedIds.length ? await Symptom.findAll({ where: { id: mergedIds } }) : []
   const slugById = new Map([...symptoms, ...targets].map(s => [s.id, s.slug]))
   const order = new Map((content.symptoms ?? []).map((s, i) => [s, i]))
   return {
