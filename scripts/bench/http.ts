@@ -4,6 +4,8 @@
 //   1. GET /api/procedures/<slug> req/s ≥ 25 % of the bare server's (same connections, same duration)
 //   2. SSR /procedures/<slug>: p95 ≤ 80 ms at 10 connections
 //   3. mixed read/search load, 50 connections for N s (default 60): 0 errors, p99 ≤ 250 ms
+// plus two references from the same run: GET /api/me (the per-request session check alone) and
+// the SSR of the public /login page (the smallest page), the floors under targets 1 and 2.
 // Latency percentiles are computed from every response time autocannon reports (its `response`
 // event), so p95 is exact rather than read from autocannon's fixed percentile list.
 // Ratios measured in the same run matter more than absolute figures on a shared 2-core machine.
@@ -235,6 +237,17 @@ try {
   await cannon({ url: `${APP}/procedures/${slug}`, connections: SSR_CONNECTIONS, duration: WARM_SECONDS, headers: pageHeaders }, false)
   const ssr = await cannon({ url: `${APP}/procedures/${slug}`, connections: SSR_CONNECTIONS, duration: PHASE_SECONDS, headers: pageHeaders })
 
+  // References, same run: what the session check alone and a data-free page cost. They show how
+  // much of targets 1 and 2 is the app's own work and how much the stack's floor on this machine.
+  const REF_SECONDS = Math.max(5, Math.round(PHASE_SECONDS / 2))
+  step(`references: GET /api/me and SSR /login, ${REF_SECONDS} s each…`)
+  await expectOk('/api/me', headers)
+  await cannon({ url: `${APP}/api/me`, connections: PAIR_CONNECTIONS, duration: WARM_SECONDS, headers }, false)
+  const me = await cannon({ url: `${APP}/api/me`, connections: PAIR_CONNECTIONS, duration: REF_SECONDS, headers })
+  const publicPage = { accept: 'text/html' }
+  await cannon({ url: `${APP}/login`, connections: SSR_CONNECTIONS, duration: WARM_SECONDS, headers: publicPage }, false)
+  const loginPage = await cannon({ url: `${APP}/login`, connections: SSR_CONNECTIONS, duration: REF_SECONDS, headers: publicPage })
+
   // 3. Mixed read/search load: per block of 8, 3 searches, 2 procedure reads, 1 list, 1 evidence, 1 page.
   const phrases = [
     'wont dim', 'flickers half', 'dead no output', 'buzzs when dimmed', 'lamp glows wen off', 'trips the rcd',
@@ -280,11 +293,13 @@ try {
   row('bare node:http hello-world', bare)
   row(`GET /api/procedures/${slug}`, api, api, `≥ 25 % of bare req/s: ${(ratio * 100).toFixed(1)} % ${ok(ratio >= 0.25 && api.non2xx + api.errors === 0)}`)
   row(`SSR /procedures/${slug}`, ssr, ssr, `p95 ≤ 80 ms at 10 conns: ${f(ssrP95)} ms ${ok(ssrP95 <= 80 && ssr.non2xx + ssr.errors === 0)}`)
+  row('  ref: GET /api/me (session check only)', me, me, `${((me.reqPerSec / bare.reqPerSec) * 100).toFixed(1)} % of bare: one user-row query, no other work`)
+  row("  ref: SSR /login (public, no data)", loginPage, loginPage, `the smallest page: Nuxt's own floor for target 2`)
   row('mixed read/search load', load, load, `0 errors, p99 ≤ 250 ms: ${loadErrors} errors, ${f(loadP99)} ms ${ok(loadErrors === 0 && loadP99 <= 250)}`)
   for (const [label, e] of [...load.byLabel.entries()].sort((a, b) => b[1].ms.length - a[1].ms.length)) {
     row(`  ${label}`, undefined, { reqPerSec: e.ms.length / load.seconds, ms: e.ms, non2xx: e.non2xx }, `${((e.ms.length / load.ms.length) * 100).toFixed(0)} % of responses`)
   }
-  const runs: [string, Run][] = [['bare', bare], ['api', api], ['ssr', ssr], ['load', load]]
+  const runs: [string, Run][] = [['bare', bare], ['api', api], ['ssr', ssr], ['me', me], ["login", loginPage], ['load', load]]
   const codes = runs.map(([n, r]) => `${n} ${r.codes}${r.timeouts ? `, ${r.timeouts} timeouts` : ''}`).join(' · ')
   console.log(`\nstatus codes: ${codes}`)
   console.log(`targets 1 and 2 ran ${PHASE_SECONDS} s each, target 3 ${LOAD_SECONDS} s; each after a ${WARM_SECONDS} s warm-up that is not counted. p95/p99 are nearest-rank over every response time.`)
