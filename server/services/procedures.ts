@@ -200,6 +200,8 @@ export async function readPublished(slug: string, user: User): Promise<Procedure
   }
 }
 
+type ListRow = { id: number, number: number, publishedAt: Date | string, title: string, deviceType: string, symptoms: unknown, hazards: unknown, procedure: { id: number, slug: string } }
+
 /** The published, active procedures, newest first, filtered by device type and symptom. */
 export async function listPublished(filter: { deviceType?: string, symptom?: string, page: number, pageSize: number }): Promise<Paginated<ProcedureListItemDto>> {
   const sequelize = useDb()
@@ -212,15 +214,23 @@ export async function listPublished(filter: { deviceType?: string, symptom?: str
     const wanted = [filter.symptom, ...[...mergedInto].filter(([, into]) => into === filter.symptom).map(([from]) => from)]
     where.push({ [Op.or]: wanted.map(s => sequelize.where(sequelize.fn('JSON_CONTAINS', sequelize.col('content'), JSON.stringify(s), sequelize.literal("'$.symptoms'")), 1)) })
   }
-  const { rows, count } = await Revision.findAndCountAll({
+  // Only the parts of the content a list shows: parsing whole procedures (steps and all) for a
+  // page of 20 was most of this route's time.
+  const part = (fn: 'JSON_VALUE' | 'JSON_EXTRACT', path: string) => sequelize.fn(fn, sequelize.col('content'), sequelize.literal(`'${path}'`))
+  const { rows: found, count } = await Revision.findAndCountAll({
+    attributes: ['id', 'number', 'publishedAt', [part('JSON_VALUE', '$.title'), 'title'], [part('JSON_VALUE', '$.deviceType'), 'deviceType'], [part('JSON_EXTRACT', '$.symptoms'), 'symptoms'], [part('JSON_EXTRACT', '$.hazards'), 'hazards']],
     where: { [Op.and]: where },
-    include: [{ model: Procedure, as: 'procedure', where: { status: 'active' }, required: true }],
+    include: [{ model: Procedure, as: 'procedure', attributes: ['id', 'slug'], where: { status: 'active' }, required: true }],
     order: [['publishedAt', 'DESC'], ['id', 'DESC']],
     limit: filter.pageSize,
     offset: (filter.page - 1) * filter.pageSize,
+    raw: true,
+    nest: true,
   })
+  const jsonList = (v: unknown): string[] => (Array.isArray(v) ? v : typeof v === 'string' ? JSON.parse(v) as string[] : [])
+  const rows = (found as unknown as ListRow[]).map(r => ({ ...r, symptoms: jsonList(r.symptoms), hazards: jsonList(r.hazards) as RevisionContent['hazards'] }))
   const slugs = new Set<string>()
-  for (const r of rows) for (const s of [r.content.deviceType, ...resolve(r.content.symptoms)]) slugs.add(s)
+  for (const r of rows) for (const s of [r.deviceType, ...resolve(r.symptoms)]) slugs.add(s)
   const [types, symptoms] = await Promise.all([
     DeviceType.findAll({ where: { slug: [...slugs] }, raw: true }),
     Symptom.findAll({ where: { slug: [...slugs] }, attributes: ['slug', 'name'], raw: true }),
@@ -228,19 +238,16 @@ export async function listPublished(filter: { deviceType?: string, symptom?: str
   const typeName = new Map(types.map(t => [t.slug, t.name]))
   const symptomName = new Map(symptoms.map(s => [s.slug, s.name]))
   return {
-    data: rows.map((r) => {
-      const proc = (r as Revision & { procedure: Procedure }).procedure
-      return {
-        id: proc.id,
-        slug: proc.slug,
-        title: r.content.title,
-        deviceType: { slug: r.content.deviceType, name: typeName.get(r.content.deviceType) ?? r.content.deviceType },
-        symptoms: resolve(r.content.symptoms).map(s => ({ slug: s, name: symptomName.get(s) ?? s })),
-        hazards: r.content.hazards,
-        revisionNumber: r.number!,
-        publishedAt: r.publishedAt!.toISOString(),
-      }
-    }),
+    data: rows.map(r => ({
+      id: r.procedure.id,
+      slug: r.procedure.slug,
+      title: r.title,
+      deviceType: { slug: r.deviceType, name: typeName.get(r.deviceType) ?? r.deviceType },
+      symptoms: resolve(r.symptoms).map(s => ({ slug: s, name: symptomName.get(s) ?? s })),
+      hazards: r.hazards,
+      revisionNumber: r.number,
+      publishedAt: new Date(r.publishedAt).toISOString(),
+    })),
     meta: { total: count, page: filter.page, pageSize: filter.pageSize, pages: Math.max(1, Math.ceil(count / filter.pageSize)) },
   }
 }
