@@ -207,10 +207,11 @@ class TermIndex<T> extends MiniSearch<T> {
   private bulk: Array<Map<string, Postings | null> | undefined> | null = null
 
   /**
-   * Bulk indexing, several times faster than MiniSearch's own loop: identical postings, field
-   * lengths and averages (its `add`, step for step; the agreement test compares them), but
-   * each token is looked up once per document occurrence in a per-build cache, and new postings
-   * go into packed lists (`Postings`) instead of one Map entry each.
+   * Bulk indexing, well over twice as fast as MiniSearch's own loop (scripts/bench/search.ts
+   * times both on the same documents): identical postings, field lengths and averages (its
+   * `add`, step for step; the agreement test compares them), but each token is looked up once
+   * per occurrence in a per-build cache, and new postings go into packed lists (`Postings`)
+   * instead of one Map entry each.
    */
   override addAll(documents: readonly T[]): void {
     const own = !this.bulk
