@@ -1,5 +1,6 @@
 // Roles without zod, so that what every page loads (the sign-in check, the header) does not
-// carry the schema library; the schemas live in ./auth, which re-exports these.
+// carry the schema library; the schemas live in ./auth, which imports these. Import roles
+// from here, on both sides.
 
 /** Roles in ascending order: each includes every role before it. */
 export const ROLES = ['technician', 'author', 'editor', 'admin'] as const
