@@ -1,11 +1,11 @@
 // `npm test`: the same services as `npm start`, on their own ports and a throw-away data folder
 // (.data-test/, never .data/), a fresh database, then every vitest project. Exit code = result.
 import { spawn, spawnSync } from 'node:child_process'
-import { existsSync, mkdirSync, rmSync } from 'node:fs'
+import { existsSync, mkdirSync, readFileSync, rmSync } from 'node:fs'
 import { join } from 'node:path'
 import { done, fail, step } from './lib/proc'
 import {
-  ROOT, buildApp, buildIsStale, runScript, stackEnv, startApp, startDatabase, startMailCatcher, startObjectStore,
+  ROOT, appFiles, buildApp, buildIsStale, runScript, stackEnv, startApp, startDatabase, startMailCatcher, startObjectStore,
   stopApp, stopDatabase, stopMailCatcher, stopObjectStore, testProfile,
 } from './lib/stack'
 
@@ -32,6 +32,29 @@ function ensureChromium() {
 
 // Faster mail retries and polling than production, so outage tests finish in seconds.
 const TEST_APP_ENV = { NUXT_MAIL_POLL_MS: '500', NUXT_MAIL_RETRY_BASE_MS: '1000' }
+
+/**
+ * After a failed run, what the servers themselves said: the app's unhandled errors (an API 500
+ * answers only "the error was logged") and any deadlock MariaDB reported. CI keeps the console
+ * output, not .data-test/, so this is what there is to read afterwards.
+ */
+function printServerErrors() {
+  const read = (file: string) => existsSync(file) ? readFileSync(file, 'utf8').split('\n') : []
+  const sections: string[] = []
+  for (const instance of ['app', 'app-b']) {
+    const lines = read(appFiles(profile, instance).log)
+    lines.forEach((line, i) => {
+      if (line.includes('[benchlore] unhandled error')) sections.push(`${instance}.log:\n${lines.slice(i, i + 14).join('\n')}`)
+    })
+  }
+  const db = read(join(profile.dataDir, 'mariadb', 'error.log'))
+  db.forEach((line, i) => {
+    if (/DEADLOCK/i.test(line)) sections.push(`mariadb error.log:\n${db.slice(i, i + 60).join('\n')}`)
+  })
+  if (!sections.length) return
+  console.error(`\n▸ what the servers logged (${sections.length} entr${sections.length === 1 ? 'y' : 'ies'}, the last 8 shown):`)
+  for (const s of sections.slice(-8)) console.error(`${s}\n`)
+}
 
 let code = 1
 process.on('SIGINT', () => void stopAll().then(() => process.exit(130)))
@@ -67,6 +90,7 @@ try {
     const child = spawn(join(ROOT, 'node_modules', '.bin', 'vitest'), args, { cwd: ROOT, env, stdio: 'inherit' })
     child.on('exit', c => resolve(c ?? 1))
   })
+  if (code !== 0) printServerErrors()
 }
 catch (error) {
   console.error(`✗ ${(error as Error).message}`)

@@ -63,7 +63,7 @@ export async function startMariadb(db: LocalMariadb): Promise<void> {
   startDetached(mariadbd()!, ['--no-defaults', '--user=root', `--datadir=${f.data}`, `--socket=${f.socket}`, `--pid-file=${f.pid}`,
     `--port=${db.port}`, '--bind-address=127.0.0.1', '--skip-name-resolve', `--log-error=${f.log}`,
     '--innodb-log-file-size=16M', '--innodb-buffer-pool-size=128M', '--character-set-server=utf8mb4',
-    '--collation-server=utf8mb4_unicode_ci', '--max-connections=300'], { logFile: join(db.dir, 'stdout.log') })
+    '--collation-server=utf8mb4_unicode_ci', '--max-connections=300', '--innodb-print-all-deadlocks=ON'], { logFile: join(db.dir, 'stdout.log') })
   await waitFor('MariaDB', async () => {
     client(db, 'SELECT 1')
     return true

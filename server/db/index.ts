@@ -1,5 +1,5 @@
 import * as mariadb from 'mariadb'
-import { Sequelize } from 'sequelize'
+import { Sequelize, type Transaction, type TransactionOptions } from 'sequelize'
 import { initModels } from './models'
 
 export interface DbConfig {
@@ -60,6 +60,37 @@ export function initDatabase(cfg: DbConfig): Sequelize {
 export function useDb(): Sequelize {
   if (!sequelize) throw new Error('database not initialised: call initDatabase() first')
   return sequelize
+}
+
+/** InnoDB's answer when it chose this transaction as the victim of a deadlock (ER_LOCK_DEADLOCK). */
+export function isDeadlock(error: unknown): boolean {
+  let e: unknown = error
+  for (let depth = 0; e && depth < 4; depth++) {
+    const err = e as { errno?: number, code?: string, original?: unknown, parent?: unknown, cause?: unknown }
+    if (err.errno === 1213 || err.code === 'ER_LOCK_DEADLOCK') return true
+    e = err.original ?? err.parent ?? err.cause
+  }
+  return false
+}
+
+/**
+ * A managed transaction, re-run from the start when InnoDB rolls it back to break a deadlock
+ * (the remedy the MySQL/MariaDB manuals give: be ready to re-issue a transaction that fails on
+ * a deadlock). The callback must touch only the database: it may run up to `attempts` times.
+ * Other errors, and a deadlock on the last attempt, go to the caller as before.
+ */
+export async function inTransaction<T>(fn: (transaction: Transaction) => Promise<T>, options: TransactionOptions & { attempts?: number } = {}): Promise<T> {
+  const { attempts = 4, ...txOptions } = options
+  for (let attempt = 1; ; attempt++) {
+    try {
+      return await useDb().transaction(txOptions, fn)
+    }
+    catch (error) {
+      if (attempt >= attempts || !isDeadlock(error)) throw error
+      // A short random pause, so the transactions that collided do not collide again in step.
+      await new Promise(resolve => setTimeout(resolve, 5 + Math.random() * 20 * attempt))
+    }
+  }
 }
 
 export async function closeDatabase(): Promise<void> {

@@ -3,7 +3,7 @@ import { createError } from 'h3'
 import { Op } from 'sequelize'
 import type { AdminUserDto, UserDto } from '../../shared/types/auth'
 import type { Role } from '../../shared/types/roles'
-import { Invitation, LoginFailure, User, useDb } from '../db'
+import { Invitation, LoginFailure, User, inTransaction } from '../db'
 import { recordAudit } from './audit'
 import { queueMail } from './mail'
 
@@ -94,7 +94,7 @@ const tokenHash = (token: string) => createHash('sha256').update(token).digest('
 export async function inviteUser(input: { email: string, role: Role, name?: string }, actor: User, appOrigin: string): Promise<{ user: User, expiresAt: Date }> {
   const token = randomBytes(32).toString('base64url')
   const expiresAt = new Date(Date.now() + INVITE_TTL_MS)
-  const user = await useDb().transaction(async (transaction) => {
+  const user = await inTransaction(async (transaction) => {
     let user = await User.findOne({ where: { email: input.email }, transaction, lock: transaction.LOCK.UPDATE })
     if (user?.passwordHash) {
       throw createError({ statusCode: 409, message: `${input.email} already has a Benchlore account.`, data: { fields: { email: 'already has an account' } } })
@@ -138,7 +138,7 @@ export async function findInvitation(token: string): Promise<{ status: Invitatio
 
 export async function acceptInvitation(input: { token: string, name: string, password: string }, hashPassword: (p: string) => Promise<string>): Promise<User> {
   const passwordHash = await hashPassword(input.password)
-  return await useDb().transaction(async (transaction) => {
+  return await inTransaction(async (transaction) => {
     const invitation = await Invitation.findOne({ where: { tokenHash: tokenHash(input.token) }, transaction, lock: transaction.LOCK.UPDATE })
     if (!invitation) throw createError({ statusCode: 404, message: 'This invitation link is not known. Ask an admin for a new one.' })
     if (invitation.acceptedAt) throw createError({ statusCode: 410, message: 'This invitation link has already been used. Sign in, or ask an admin for a new link.' })
@@ -158,7 +158,7 @@ export async function acceptInvitation(input: { token: string, name: string, pas
  * each other at once cannot both succeed.
  */
 export async function updateUser(targetId: number, patch: { role?: Role, active?: boolean, name?: string }, actor: User): Promise<User> {
-  return await useDb().transaction(async (transaction) => {
+  return await inTransaction(async (transaction) => {
     const admins = await User.findAll({ where: { role: 'admin', active: true }, transaction, lock: transaction.LOCK.UPDATE })
     const user = await User.findByPk(targetId, { transaction, lock: transaction.LOCK.UPDATE })
     if (!user) throw createError({ statusCode: 404, message: 'No such user.' })

@@ -1,7 +1,7 @@
 import { Op, QueryTypes, type Transaction } from 'sequelize'
 import { rankCauses } from '../../shared/utils/evidence'
 import type { EvidenceCauseDto } from '../../shared/types/records'
-import { Procedure, Revision, useDb } from '../db'
+import { Procedure, Revision, inTransaction, useDb } from '../db'
 
 export interface CandidateCause { procedureId: number, procedureSlug: string, causeKey: string, label: string, prior: number }
 
@@ -45,7 +45,7 @@ export async function adjustCauseCounts(r: { deviceType: string, causeProcedureI
 
 /** Recomputes the running counts from the records (after bulk loads; also a repair tool). */
 export async function rebuildCauseCounts(): Promise<void> {
-  await useDb().transaction(async (transaction) => {
+  await inTransaction(async (transaction) => {
     await useDb().query('DELETE FROM cause_counts', { type: QueryTypes.DELETE, transaction })
     const closed = "r.status = 'closed' AND r.cause_key IS NOT NULL"
     await useDb().query(`INSERT INTO cause_counts (device_type, cause_procedure_id, cause_key, symptom, n)

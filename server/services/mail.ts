@@ -1,6 +1,6 @@
 import nodemailer, { type Transporter } from 'nodemailer'
-import { Op, type Transaction } from 'sequelize'
-import { OutboxMessage, useDb } from '../db'
+import { Op, Transaction } from 'sequelize'
+import { inTransaction, OutboxMessage } from '../db'
 
 export interface SmtpConfig {
   host: string
@@ -57,12 +57,14 @@ export function retryDelayMs(attempts: number, baseMs: number): number {
 
 /**
  * Sends what is due. Rows are claimed with SELECT … FOR UPDATE SKIP LOCKED and a lease, so
- * several app instances can run the worker without sending a message twice.
+ * several app instances can run the worker without sending a message twice. The claim reads
+ * in READ COMMITTED: under REPEATABLE READ its range scan would also lock the gaps of the
+ * outbox's (status, next_attempt_at) index, and every transaction queueing mail meanwhile (a
+ * submission holding its procedure's lock, say) would have to wait for the worker.
  */
 export async function deliverDueMail(transport: Transporter, opts: { from: string, retryBaseMs: number, batch?: number }): Promise<{ sent: number, failed: number }> {
-  const sequelize = useDb()
   const now = new Date()
-  const claimed = await sequelize.transaction(async (transaction) => {
+  const claimed = await inTransaction(async (transaction) => {
     const rows = await OutboxMessage.findAll({
       where: {
         status: 'pending',
@@ -79,7 +81,7 @@ export async function deliverDueMail(transport: Transporter, opts: { from: strin
       await OutboxMessage.update({ lockedUntil: new Date(now.getTime() + 60_000) }, { where: { id: rows.map(r => r.id) }, transaction })
     }
     return rows
-  })
+  }, { isolationLevel: Transaction.ISOLATION_LEVELS.READ_COMMITTED })
   let sent = 0
   let failed = 0
   for (const row of claimed) {

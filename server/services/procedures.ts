@@ -9,7 +9,7 @@ import type {
 } from '../../shared/types/procedure-api'
 import { slugify } from '../../shared/utils/slug'
 import { describeZodError } from '../../shared/utils/validation'
-import { Attachment, DeviceType, Procedure, ReviewComment, Revision, Symptom, User, useDb } from '../db'
+import { Attachment, DeviceType, Procedure, ReviewComment, Revision, Symptom, User, inTransaction, useDb } from '../db'
 import { renderMarkdown } from '../utils/markdown'
 import { recordAudit } from './audit'
 import { notifyProcedureChanged } from './change-log'
@@ -286,7 +286,7 @@ async function freeProcedureSlug(title: string, transaction: Transaction): Promi
 }
 
 export async function createProcedure(content: DraftContent, changeNote: string | undefined, actor: User) {
-  return await useDb().transaction(async (transaction) => {
+  return await inTransaction(async (transaction) => {
     const proc = await Procedure.create({ slug: await freeProcedureSlug(content.title, transaction), createdById: actor.id, publishedRevisionId: null, retiredAt: null }, { transaction })
     const rev = await Revision.create({ procedureId: proc.id, number: null, authorId: actor.id, content: content as RevisionContent, changeNote: changeNote ?? 'First version', baseRevisionId: null, reviewerId: null, submittedAt: null, decidedAt: null, publishedAt: null }, { transaction })
     await recordAudit({ actorId: actor.id, action: 'procedure.created', entityType: 'procedure', entityId: proc.id, after: { slug: proc.slug, revisionId: rev.id } }, transaction)
@@ -299,7 +299,7 @@ export async function createProcedure(content: DraftContent, changeNote: string 
  * them. One open draft per author and procedure.
  */
 export async function startDraft(slug: string, actor: User, fromId?: number) {
-  return await useDb().transaction(async (transaction) => {
+  return await inTransaction(async (transaction) => {
     const proc = await Procedure.findOne({ where: { slug }, transaction, lock: transaction.LOCK.UPDATE })
     if (!proc) throw notFound('procedure')
     if (proc.status === 'retired') throw createError({ statusCode: 409, message: 'This procedure is retired; it takes no new revisions.' })
@@ -321,7 +321,7 @@ export async function startDraft(slug: string, actor: User, fromId?: number) {
  * another tab meanwhile) is refused with the current draft in the answer, so nothing is lost.
  */
 export async function saveDraft(id: number, input: { version: number, content: DraftContent, changeNote?: string }, actor: User) {
-  const result = await useDb().transaction(async (transaction) => {
+  const result = await inTransaction(async (transaction) => {
     const { rev, proc } = await loadRevision(id, transaction, true)
     if (!canSeeRevision(actor, rev, proc)) throw notFound()
     if (rev.authorId !== actor.id) throw createError({ statusCode: 403, message: 'Only the author of a draft can change it.' })
@@ -345,7 +345,7 @@ async function editorsExcept(authorId: number, transaction: Transaction) {
 }
 
 export async function submitRevision(id: number, actor: User, appOrigin: string) {
-  return await useDb().transaction(async (transaction) => {
+  return await inTransaction(async (transaction) => {
     const { rev } = await loadRevision(id, transaction, false)
     if (rev.authorId !== actor.id) {
       if (rev.state === 'draft' && !roleAtLeast(actor.role, 'editor')) throw notFound()
@@ -387,7 +387,7 @@ export type Decision = 'approve' | 'request_changes' | 'reject'
 const DECISION_STATE: Record<Decision, RevisionState> = { approve: 'published', request_changes: 'changes_requested', reject: 'rejected' }
 
 export async function decideRevision(id: number, decision: Decision, comment: string | undefined, actor: User, appOrigin: string) {
-  return await useDb().transaction(async (transaction) => {
+  return await inTransaction(async (transaction) => {
     const { rev } = await loadRevision(id, transaction, false)
     const proc = await Procedure.findByPk(rev.procedureId, { transaction, lock: transaction.LOCK.UPDATE })
     await rev.reload({ transaction, lock: transaction.LOCK.UPDATE })
@@ -423,7 +423,7 @@ export async function decideRevision(id: number, decision: Decision, comment: st
 }
 
 export async function retireProcedure(slug: string, reason: string, actor: User) {
-  return await useDb().transaction(async (transaction) => {
+  return await inTransaction(async (transaction) => {
     const proc = await Procedure.findOne({ where: { slug }, transaction, lock: transaction.LOCK.UPDATE })
     if (!proc) throw notFound('procedure')
     if (proc.status === 'retired') throw createError({ statusCode: 409, message: 'This procedure is already retired.', data: { status: proc.status } })

@@ -5,7 +5,7 @@ import type { MeasurementSpec } from '../../shared/types/measurement'
 import type { RevisionContent } from '../../shared/types/procedure'
 import type { Outcome, ReadingResultDto, RecordDto, RecordListItemDto, RecordListQuery } from '../../shared/types/records'
 import { evaluateReading } from '../../shared/utils/readings'
-import { Attachment, DeviceType, Procedure, RecordAmendment, RecordSymptom, RepairRecord, Revision, StepFlag, Symptom, User, useDb } from '../db'
+import { Attachment, DeviceType, Procedure, RecordAmendment, RecordSymptom, RepairRecord, Revision, StepFlag, Symptom, User, inTransaction, useDb } from '../db'
 import type { StoredPart, StoredStep } from '../db/models/repair-record'
 import { recordAudit } from './audit'
 import { ChangeLogEntry } from '../db/models/change-log-entry'
@@ -131,7 +131,7 @@ export async function startRecord(input: { procedureSlug?: string, deviceType?: 
   }
   const known = await Symptom.count({ where: { slug: symptoms } })
   if (known !== new Set(symptoms).size) throw createError({ statusCode: 422, message: 'One of the symptoms is not in the vocabulary.', data: { fields: { symptoms: 'unknown symptom' } } })
-  return await useDb().transaction(async (transaction) => {
+  return await inTransaction(async (transaction) => {
     const record = await RepairRecord.create({
       procedureId, revisionId, deviceType, symptoms,
       unitModel: input.unit.model, unitSerial: input.unit.serial, jobRef: input.unit.jobRef,
@@ -146,7 +146,7 @@ export async function startRecord(input: { procedureSlug?: string, deviceType?: 
 
 /** Saves a record in progress (as the technician goes); a stale version gets 409 with the current record. */
 export async function patchRecord(id: number, patch: { version: number, unit?: Partial<{ model: string, serial: string, jobRef: string }>, symptoms?: string[], steps?: Record<string, StoredStep>, notes?: string, photoIds?: number[] }, actor: User) {
-  const result = await useDb().transaction(async (transaction) => {
+  const result = await inTransaction(async (transaction) => {
     const r = await findRecord(id, transaction)
     if (r.status !== 'in_progress') throw createError({ statusCode: 409, message: 'This record is closed; correct it with an amendment.', data: { status: r.status } })
     if (!canEditRecord(actor, r)) throw createError({ statusCode: 403, message: 'Only the record\'s technician or an editor can change it.' })
@@ -191,7 +191,7 @@ export async function closeRecord(id: number, body: { confirmedCause: string | n
   if (!canEditRecord(actor, r)) throw createError({ statusCode: 403, message: 'Only the record\'s technician or an editor can close it.' })
   const cause = await resolveCause(r, body.confirmedCause)
   await assertPhotos(body.photoIds)
-  return await useDb().transaction(async (transaction) => {
+  return await inTransaction(async (transaction) => {
     const locked = await findRecord(id, transaction)
     if (locked.status !== 'in_progress') throw createError({ statusCode: 409, message: 'This record is already closed.' })
     await locked.update({
@@ -233,7 +233,7 @@ export async function amendRecord(id: number, body: { reason: string, changes: P
   }
   const changes: Record<string, { before: unknown, after: unknown }> = {}
   for (const k of AMENDABLE) if (c[k] !== undefined) changes[k] = { before: before[k], after: c[k] }
-  return await useDb().transaction(async (transaction) => {
+  return await inTransaction(async (transaction) => {
     const locked = await findRecord(id, transaction)
     await adjustCauseCounts(locked, -1, transaction)
     await locked.update({
@@ -354,7 +354,7 @@ export async function flagStep(input: { revisionId: number, stepKey: string, kin
   if (!rev || !proc || (rev.state !== 'published' && !roleAtLeast(actor.role, 'author'))) throw createError({ statusCode: 404, message: 'No such revision.' })
   const step = rev.content.steps.find(s => s.key === input.stepKey)
   if (!step) throw createError({ statusCode: 422, message: `This revision has no step "${input.stepKey}".`, data: { fields: { stepKey: 'no such step' } } })
-  return await useDb().transaction(async (transaction) => {
+  return await inTransaction(async (transaction) => {
     const flag = await StepFlag.create({ ...input, raisedById: actor.id, resolvedById: null, resolvedAt: null }, { transaction })
     const recipients = await User.findAll({ where: { active: true, [Op.or]: [{ id: rev.authorId }, { role: ['editor', 'admin'] }], id: { [Op.ne]: actor.id } }, transaction })
     await queueMail(recipients.map(u => ({

@@ -2,7 +2,7 @@ import { createError } from 'h3'
 import { Op, UniqueConstraintError, type Transaction } from 'sequelize'
 import type { DeviceTypeDto, SymptomDto } from '../../shared/types/procedure-api'
 import { slugify } from '../../shared/utils/slug'
-import { DeviceType, Symptom, User, useDb } from '../db'
+import { DeviceType, Symptom, User, inTransaction } from '../db'
 import { recordAudit } from './audit'
 import { notifyVocabularyChanged } from './change-log'
 
@@ -76,7 +76,7 @@ function cleanSynonyms(list: string[], name: string): string[] {
 export async function createSymptom(input: { name: string, synonyms: string[], description: string }, actor: User, status: 'accepted' | 'proposed'): Promise<Symptom> {
   await assertNameFree(Symptom, input.name)
   try {
-    return await useDb().transaction(async (transaction) => {
+    return await inTransaction(async (transaction) => {
       const symptom = await Symptom.create({
         slug: await freeSlug(Symptom, input.name, transaction),
         name: input.name,
@@ -102,7 +102,7 @@ export async function updateSymptom(id: number, patch: { name?: string, synonyms
   if (!symptom) throw createError({ statusCode: 404, message: 'No such symptom.' })
   if (patch.name) await assertNameFree(Symptom, patch.name, id)
   const before = { name: symptom.name, synonyms: symptom.synonyms, description: symptom.description }
-  await useDb().transaction(async (transaction) => {
+  await inTransaction(async (transaction) => {
     await symptom.update({
       ...patch,
       synonyms: patch.synonyms ? cleanSynonyms(patch.synonyms, patch.name ?? symptom.name) : symptom.synonyms,
@@ -117,7 +117,7 @@ export async function acceptSymptom(id: number, actor: User): Promise<Symptom> {
   const symptom = await Symptom.findByPk(id)
   if (!symptom) throw createError({ statusCode: 404, message: 'No such symptom.' })
   if (symptom.status !== 'proposed') throw createError({ statusCode: 409, message: `The symptom is ${symptom.status}, not proposed.` })
-  await useDb().transaction(async (transaction) => {
+  await inTransaction(async (transaction) => {
     await symptom.update({ status: 'accepted' }, { transaction })
     await recordAudit({ actorId: actor.id, action: 'symptom.accepted', entityType: 'symptom', entityId: id }, transaction)
     await notifyVocabularyChanged(transaction)
@@ -130,7 +130,7 @@ export async function acceptSymptom(id: number, actor: User): Promise<Symptom> {
  * target and the old slug keeps resolving to it (revisions are never rewritten).
  */
 export async function mergeSymptom(id: number, intoSlug: string, actor: User): Promise<Symptom> {
-  return await useDb().transaction(async (transaction) => {
+  return await inTransaction(async (transaction) => {
     const symptom = await Symptom.findByPk(id, { transaction, lock: transaction.LOCK.UPDATE })
     if (!symptom) throw createError({ statusCode: 404, message: 'No such symptom.' })
     if (symptom.status !== 'proposed') throw createError({ statusCode: 409, message: `Only a proposed symptom can be merged; this one is ${symptom.status}.` })
@@ -149,7 +149,7 @@ export async function mergeSymptom(id: number, intoSlug: string, actor: User): P
 export async function createDeviceType(input: { name: string, description: string }, actor: User): Promise<DeviceType> {
   await assertNameFree(DeviceType, input.name)
   try {
-    return await useDb().transaction(async (transaction) => {
+    return await inTransaction(async (transaction) => {
       const d = await DeviceType.create({ slug: await freeSlug(DeviceType, input.name, transaction), name: input.name, description: input.description }, { transaction })
       await recordAudit({ actorId: actor.id, action: 'device_type.created', entityType: 'device_type', entityId: d.id, after: { name: d.name, slug: d.slug } }, transaction)
       await notifyVocabularyChanged(transaction)
@@ -166,7 +166,7 @@ export async function updateDeviceType(id: number, patch: { name?: string, descr
   const d = await DeviceType.findByPk(id)
   if (!d) throw createError({ statusCode: 404, message: 'No such device type.' })
   if (patch.name) await assertNameFree(DeviceType, patch.name, id)
-  await useDb().transaction(async (transaction) => {
+  await inTransaction(async (transaction) => {
     const before = { name: d.name, description: d.description }
     await d.update(patch, { transaction })
     await recordAudit({ actorId: actor.id, action: 'device_type.updated', entityType: 'device_type', entityId: id, before, after: { name: d.name, description: d.description } }, transaction)

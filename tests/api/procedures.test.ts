@@ -111,7 +111,7 @@ describe('revision states', () => {
     const clients = await Promise.all(authors.map(a => new ApiClient().login(a.email, FACTORY_PASSWORD)))
     const drafts = await Promise.all(clients.map(c => c.post(`/api/procedures/${procedure.slug}/revisions`, {})))
     const results = await Promise.all(clients.map((c, i) => c.post(`/api/revisions/${drafts[i]!.body.revision.id}/submit`)))
-    expect(results.map(r => r.status)).toEqual(Array(20).fill(200))
+    expect(results.map(r => r.status), JSON.stringify(results.filter(r => r.status !== 200).map(r => r.body))).toEqual(Array(20).fill(200))
     const numbers = results.map(r => r.body.revision.number as number).sort((a, b) => a - b)
     expect(numbers).toEqual(Array.from({ length: 20 }, (_, i) => i + 2))
     testDb()

@@ -5,7 +5,7 @@ import type { ReferenceDto, SeriesDto, SignatureMatchDto } from '../../../shared
 import { decimateMinMax } from '../../../shared/utils/waveform/decimate'
 import { analyseWaveform, WaveformError, type WaveformAnalysis } from '../../../shared/utils/waveform/analyse'
 import { rankSignatures } from '../../../shared/utils/waveform/signature'
-import { Attachment, Capture, Procedure, RepairRecord, Revision, SignatureReference, User, useDb } from '../../db'
+import { Attachment, Capture, Procedure, RepairRecord, Revision, SignatureReference, User, inTransaction } from '../../db'
 import type { ObjectStore } from '../storage'
 import { ObjectStoreUnavailable } from '../storage'
 import { CaptureFormatError, parseCaptureCsv, type ParsedCapture } from './parse'
@@ -103,7 +103,7 @@ export async function storeCapture(file: { data: Buffer }, opts: { label: string
     throw error instanceof ObjectStoreUnavailable ? error : new ObjectStoreUnavailable(String(error))
   }
   try {
-    return await useDb().transaction(async (transaction) => {
+    return await inTransaction(async (transaction) => {
       const attachment = await Attachment.create({ objectKey: rawKey, thumbnailKey: null, kind: 'capture', mime: 'text/csv', bytes: file.data.length, width: null, height: null, sha256: createHash('sha256').update(file.data).digest('hex'), uploadedById: actor.id }, { transaction })
       return await Capture.create({
         attachmentId: attachment.id, samplesKey, label: opts.label, recordId: opts.recordId ?? null, uploadedById: actor.id,
