@@ -1,6 +1,5 @@
 import { z } from 'zod'
-import { Procedure, Revision } from '../db'
-import { evidenceFor } from '../services/evidence'
+import { evidenceFor, liveProcedureFacts } from '../services/evidence'
 
 const Query = z.object({
   symptoms: z.string().max(800).optional().transform(s => (s ? s.split(',').map(x => x.trim()).filter(Boolean).slice(0, 20) : [])),
@@ -12,10 +11,9 @@ export default defineEventHandler(async (event) => {
   await requireUser(event)
   const q = await getValidatedQuery(event, parseWith(Query))
   if (q.procedure) {
-    const proc = await Procedure.findOne({ where: { slug: q.procedure, status: 'active' } })
-    const rev = proc?.publishedRevisionId ? await Revision.findByPk(proc.publishedRevisionId) : null
-    if (!proc || !rev) throw createError({ statusCode: 404, message: 'No such live procedure.' })
-    return await evidenceFor({ deviceType: q.deviceType ?? rev.content.deviceType, symptoms: q.symptoms.length ? q.symptoms : rev.content.symptoms, procedureId: proc.id })
+    const live = await liveProcedureFacts(q.procedure)
+    if (!live) throw createError({ statusCode: 404, message: 'No such live procedure.' })
+    return await evidenceFor({ deviceType: q.deviceType ?? live.deviceType, symptoms: q.symptoms.length ? q.symptoms : live.symptoms, procedureId: live.procedureId })
   }
   return await evidenceFor({ deviceType: q.deviceType!, symptoms: q.symptoms })
 })

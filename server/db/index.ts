@@ -1,5 +1,5 @@
 import * as mariadb from 'mariadb'
-import { Sequelize, type Transaction, type TransactionOptions } from 'sequelize'
+import { Sequelize, type ModelStatic, type Transaction, type TransactionOptions } from 'sequelize'
 import { initModels } from './models'
 
 export interface DbConfig {
@@ -90,6 +90,27 @@ export async function inTransaction<T>(fn: (transaction: Transaction) => Promise
       // A short random pause, so the transactions that collided do not collide again in step.
       await new Promise(resolve => setTimeout(resolve, 5 + Math.random() * 20 * attempt))
     }
+  }
+}
+
+type HookOptions = { transaction?: Transaction | null } | undefined
+const INSTANCE_HOOKS = ['afterCreate', 'afterUpdate', 'afterDestroy', 'afterUpsert'] as const
+const BULK_HOOKS = ['afterBulkCreate', 'afterBulkUpdate', 'afterBulkDestroy'] as const
+
+/**
+ * Calls `listener` whenever a row of one of these models is created, changed or deleted through
+ * Sequelize in this process: after the transaction commits (so a reader refilling a cache sees
+ * the new value), or at once outside a transaction. Raw SQL does not pass through model hooks.
+ */
+export function afterModelChange(models: Array<ModelStatic<any>>, listener: () => void): void {
+  const fire = (options: HookOptions) => {
+    if (options?.transaction) options.transaction.afterCommit(() => listener())
+    else listener()
+  }
+  for (const model of models) {
+    for (const hook of INSTANCE_HOOKS) model.addHook(hook, (_row: unknown, options: HookOptions) => fire(options))
+    // Bulk hooks: afterBulkCreate gets (rows, options), the others (options).
+    for (const hook of BULK_HOOKS) model.addHook(hook, (a: unknown, b?: HookOptions) => fire(hook === 'afterBulkCreate' ? b : a as HookOptions))
   }
 }
 

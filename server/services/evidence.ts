@@ -8,23 +8,50 @@ export interface CandidateCause { procedureId: number, procedureSlug: string, ca
 /** `procedureSlug:causeKey`, the id a cause goes by across procedures. */
 export const causeId = (procedureSlug: string, causeKey: string) => `${procedureSlug}:${causeKey}`
 
-/** Causes of the published, active procedures for a device type that share a symptom (all of one procedure when given). */
+type CandidateRow = { symptoms: unknown, causes: unknown, procedure: { id: number, slug: string } }
+type StoredCause = { key: string, name: string, prior: number }
+const jsonOf = <T>(v: unknown): T[] => (Array.isArray(v) ? v : typeof v === 'string' ? JSON.parse(v) as T[] : [])
+
+/**
+ * Causes of the published, active procedures for a device type that share a symptom (all of one
+ * procedure when given). Only the symptoms and causes of each revision are read, not whole
+ * procedures with their steps.
+ */
 export async function candidateCauses(opts: { deviceType: string, symptoms: string[], procedureId?: number }): Promise<CandidateCause[]> {
   const sequelize = useDb()
+  const part = (path: string) => sequelize.fn('JSON_EXTRACT', sequelize.col('content'), sequelize.literal(`'${path}'`))
   const rows = await Revision.findAll({
+    attributes: [[part('$.symptoms'), 'symptoms'], [part('$.causes'), 'causes']],
     where: opts.procedureId
       ? { state: 'published', procedureId: opts.procedureId }
       : { state: 'published', [Op.and]: [sequelize.where(sequelize.fn('JSON_VALUE', sequelize.col('content'), sequelize.literal("'$.deviceType'")), opts.deviceType)] },
     include: [{ model: Procedure, as: 'procedure', where: { status: 'active' }, required: true, attributes: ['id', 'slug'] }],
-  })
+    order: [['id', 'ASC']],
+    raw: true,
+    nest: true,
+  }) as unknown as CandidateRow[]
   const wanted = new Set(opts.symptoms)
   const out: CandidateCause[] = []
   for (const r of rows) {
-    if (!opts.procedureId && wanted.size && !r.content.symptoms.some(s => wanted.has(s))) continue
-    const proc = (r as Revision & { procedure: Procedure }).procedure
-    for (const c of r.content.causes) out.push({ procedureId: proc.id, procedureSlug: proc.slug, causeKey: c.key, label: c.name, prior: c.prior })
+    if (!opts.procedureId && wanted.size && !jsonOf<string>(r.symptoms).some(s => wanted.has(s))) continue
+    for (const c of jsonOf<StoredCause>(r.causes)) out.push({ procedureId: r.procedure.id, procedureSlug: r.procedure.slug, causeKey: c.key, label: c.name, prior: c.prior })
   }
   return out
+}
+
+/** The device type and symptoms of an active procedure's live revision, read as those two parts only. */
+export async function liveProcedureFacts(slug: string): Promise<{ procedureId: number, deviceType: string, symptoms: string[] } | null> {
+  const sequelize = useDb()
+  const proc = await Procedure.findOne({ where: { slug, status: 'active' }, attributes: ['id', 'publishedRevisionId'], raw: true })
+  if (!proc?.publishedRevisionId) return null
+  const rev = await Revision.findByPk(proc.publishedRevisionId, {
+    attributes: [
+      [sequelize.fn('JSON_VALUE', sequelize.col('content'), sequelize.literal("'$.deviceType'")), 'deviceType'],
+      [sequelize.fn('JSON_EXTRACT', sequelize.col('content'), sequelize.literal("'$.symptoms'")), 'symptoms'],
+    ],
+    raw: true,
+  }) as unknown as { deviceType: string, symptoms: unknown } | null
+  return rev ? { procedureId: proc.id, deviceType: rev.deviceType, symptoms: jsonOf<string>(rev.symptoms) } : null
 }
 
 interface CountRow { pid: number, ck: string, symptom: string, n: number }

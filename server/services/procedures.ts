@@ -1,4 +1,5 @@
 import { createError } from 'h3'
+import { LRUCache } from 'lru-cache'
 import { Op, type Transaction, type WhereOptions } from 'sequelize'
 import { roleAtLeast } from '../../shared/types/roles'
 import { RevisionContent, type DraftContent, type RevisionState } from '../../shared/types/procedure'
@@ -9,7 +10,7 @@ import type {
 } from '../../shared/types/procedure-api'
 import { slugify } from '../../shared/utils/slug'
 import { describeZodError } from '../../shared/utils/validation'
-import { Attachment, DeviceType, Procedure, ReviewComment, Revision, Symptom, User, inTransaction, useDb } from '../db'
+import { Attachment, DeviceType, Procedure, ReviewComment, Revision, Symptom, User, afterModelChange, inTransaction, useDb } from '../db'
 import { renderMarkdown } from '../utils/markdown'
 import { recordAudit } from './audit'
 import { notifyProcedureChanged } from './change-log'
@@ -176,26 +177,58 @@ export async function findProcedure(slug: string): Promise<Procedure> {
   return proc
 }
 
-export async function readPublished(slug: string, user: User): Promise<ProcedureReadDto> {
-  const proc = await findProcedure(slug)
-  const rev = proc.publishedRevisionId ? await Revision.findByPk(proc.publishedRevisionId) : null
-  if (!rev || (proc.status === 'retired' && !roleAtLeast(user.role, 'editor'))) {
-    throw createError({ statusCode: 404, message: proc.status === 'retired' ? 'This procedure was retired.' : 'This procedure has no reviewed revision yet.' })
+// What a published revision shows beside the live status: its content never changes once
+// published, so the shaped part (rendered text, photos, labels, author and reviewer) is kept per
+// revision. The labels, captions and names it carries can change: any change to those tables
+// through this instance empties the cache after commit; a change made through another instance
+// shows here within VIEW_TTL_MS. The procedure row (live revision, retired or not) and the pending
+// revisions are read on every request, so publishing and retiring show at once everywhere.
+type PublishedView = Omit<ProcedureReadDto, 'procedure' | 'pending'>
+const VIEW_TTL_MS = 5000
+const publishedViews = new LRUCache<number, PublishedView>({ max: 500, ttl: VIEW_TTL_MS })
+let watchingViews = false
+let viewGeneration = 0 // bumped by every change: a view read before a change is not kept after it
+
+async function publishedView(revisionId: number): Promise<PublishedView | null> {
+  if (!watchingViews) {
+    watchingViews = true
+    afterModelChange([Attachment, DeviceType, Symptom, User], () => {
+      viewGeneration++
+      publishedViews.clear()
+    })
   }
-  const pendingRows = roleAtLeast(user.role, 'author')
-    ? (await Revision.findAll({ where: { procedureId: proc.id, state: ['draft', 'in_review', 'changes_requested'] }, order: [['id', 'ASC']] }))
-        .filter(r => canSeeRevision(user, r, proc))
-    : []
-  const who = await people([rev.authorId, rev.reviewerId, ...pendingRows.map(r => r.authorId)])
-  const [attachments, labels] = await Promise.all([attachmentsOf(rev.content), labelsOf(rev.content)])
-  return {
-    procedure: { id: proc.id, slug: proc.slug, status: proc.status },
+  const hit = publishedViews.get(revisionId)
+  if (hit) return hit
+  const generation = viewGeneration
+  const rev = await Revision.findByPk(revisionId)
+  if (!rev) return null
+  const [who, attachments, labels] = await Promise.all([people([rev.authorId, rev.reviewerId]), attachmentsOf(rev.content), labelsOf(rev.content)])
+  const view: PublishedView = {
     revision: { id: rev.id, number: rev.number!, state: rev.state, content: rev.content, publishedAt: rev.publishedAt!.toISOString() },
     rendered: renderContent(rev.content),
     attachments,
     labels,
     author: who.get(rev.authorId)!,
     reviewer: rev.reviewerId ? who.get(rev.reviewerId) ?? null : null,
+  }
+  if (generation === viewGeneration) publishedViews.set(revisionId, view)
+  return view
+}
+
+export async function readPublished(slug: string, user: User): Promise<ProcedureReadDto> {
+  const proc = await findProcedure(slug)
+  const view = proc.publishedRevisionId ? await publishedView(proc.publishedRevisionId) : null
+  if (!view || (proc.status === 'retired' && !roleAtLeast(user.role, 'editor'))) {
+    throw createError({ statusCode: 404, message: proc.status === 'retired' ? 'This procedure was retired.' : 'This procedure has no reviewed revision yet.' })
+  }
+  const pendingRows = roleAtLeast(user.role, 'author')
+    ? (await Revision.findAll({ where: { procedureId: proc.id, state: ['draft', 'in_review', 'changes_requested'] }, order: [['id', 'ASC']] }))
+        .filter(r => canSeeRevision(user, r, proc))
+    : []
+  const who = await people(pendingRows.map(r => r.authorId))
+  return {
+    procedure: { id: proc.id, slug: proc.slug, status: proc.status },
+    ...view,
     pending: pendingRows.map(r => ({ id: r.id, number: r.number, state: r.state, author: who.get(r.authorId)! })),
   }
 }

@@ -1,3 +1,5 @@
+import { randomBytes } from 'node:crypto'
+import sharp from 'sharp'
 import { describe, expect, it } from 'vitest'
 import { Procedure, Revision } from '../../server/db'
 import { ApiClient, DEMO, signedIn } from '../helpers/api'
@@ -272,5 +274,40 @@ describe('the published library', () => {
     expect(page.meta).toMatchObject({ page: 2, pageSize: 2, total: all.meta.total })
     expect(page.data).toHaveLength(2)
     expect((await tech.get('/api/procedures?pageSize=1000')).status).toBe(400)
+  })
+})
+
+describe('the published reading', () => {
+  it('shows a renamed symptom, a new caption and a renamed author at the very next read', async () => {
+    const tag = randomBytes(3).toString('hex')
+    const editor = await signedIn(DEMO.editor)
+    const admin = await signedIn(DEMO.admin)
+    const tech = await signedIn(DEMO.technician)
+    const writer = await makeUser({ role: 'author', name: `Writer ${tag}` })
+    const author = await new ApiClient().login(writer.email, FACTORY_PASSWORD)
+    const symptom = (await editor.post('/api/symptoms', { name: `Hums at low setting ${tag}` })).body.symptom
+    const fd = new FormData()
+    fd.append('file', new Blob([await sharp({ create: { width: 320, height: 200, channels: 3, background: { r: 90, g: 90, b: 90 } } }).jpeg().toBuffer()], { type: 'image/jpeg' }), 'board.jpg')
+    const upload = (await author.post('/api/uploads', fd)).body
+    expect((await author.patch(`/api/uploads/${upload.id}`, { caption: 'Board, top side' })).status).toBe(200)
+    const content = makeContent({ symptoms: [symptom.slug] })
+    content.steps[0]!.imageIds = [upload.id]
+    const { procedure, revision } = await newDraft(author, content)
+    expect((await author.post(`/api/revisions/${revision.id}/submit`)).status).toBe(200)
+    expect((await editor.post(`/api/revisions/${revision.id}/approve`)).status).toBe(200)
+
+    const read = async () => (await tech.get(`/api/procedures/${procedure.slug}`)).body
+    const before = await read()
+    expect(before.labels.symptoms.map((s: { name: string }) => s.name)).toEqual([`Hums at low setting ${tag}`])
+    expect(before.attachments[String(upload.id)].caption).toBe('Board, top side')
+    expect(before.author.name).toBe(`Writer ${tag}`)
+    expect(await read()).toEqual(before) // a second read answers the same
+
+    expect((await editor.patch(`/api/symptoms/${symptom.id}`, { name: `Buzzes when dimmed low ${tag}` })).status).toBe(200)
+    expect((await read()).labels.symptoms.map((s: { name: string }) => s.name)).toEqual([`Buzzes when dimmed low ${tag}`])
+    expect((await author.patch(`/api/uploads/${upload.id}`, { caption: 'Board, solder side' })).status).toBe(200)
+    expect((await read()).attachments[String(upload.id)].caption).toBe('Board, solder side')
+    expect((await admin.patch(`/api/users/${writer.id}`, { name: `Writer renamed ${tag}` })).status).toBe(200)
+    expect((await read()).author.name).toBe(`Writer renamed ${tag}`)
   })
 })
