@@ -12,7 +12,8 @@ export async function requireUser(event: H3Event): Promise<User> {
   if (cached) return cached
   const claim = await sessionClaim(event)
   if (!claim?.id) throw createError({ statusCode: 401, message: 'Sign in to continue.' })
-  const user = await User.findByPk(claim.id)
+  // Everything but the password hash, which no route needs after sign-in.
+  const user = await User.findByPk(claim.id, { attributes: { exclude: ['passwordHash'] } })
   if (!user || !user.active || user.sessionVersion !== claim.sv) {
     await clearUserSession(event)
     throw createError({ statusCode: 401, message: 'Your session has ended. Sign in again.' })
