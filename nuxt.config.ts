@@ -9,6 +9,8 @@ export default defineNuxtConfig({
   devtools: { enabled: false },
   telemetry: false,
   modules: ['@nuxtjs/tailwindcss', '@pinia/nuxt', 'nuxt-auth-utils'],
+  // The session reaches server-rendered pages without an internal request: app/plugins/session.*.ts.
+  auth: { loadStrategy: 'none' },
   css: ['~/assets/css/main.css'],
   app: {
     head: {

@@ -13,6 +13,8 @@ export function useAccount() {
       me.value = null
       return
     }
+    // Already known for this person (the server found it before rendering the page).
+    if (me.value && me.value.id === user.value?.id) return
     try {
       const res = await useRequestFetch()('/api/me')
       me.value = res.user

@@ -39,6 +39,16 @@ export interface UserDto {
   role: Role
 }
 
+/**
+ * Who is signed in, as the server found it before rendering a page (server/middleware/
+ * 02.page-session.ts → app/plugins/session.server.ts): the session as /api/_auth/session would
+ * answer it, and the person as /api/me would.
+ */
+export interface PageSession {
+  session: { user: { id: number, role: Role, sv: number } }
+  me: UserDto
+}
+
 export interface AdminUserDto extends UserDto {
   active: boolean
   lastLoginAt: string | null

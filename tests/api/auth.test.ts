@@ -88,6 +88,22 @@ describe('sessions end on the server', () => {
     expect((await new ApiClient().login(user.email, FACTORY_PASSWORD)).cookie).not.toBe('')
   })
 
+  it('a server-rendered page knows the signed-in person, and renders an ended session as signed out', async () => {
+    const user = await makeUser({ name: 'Page Session Tester' })
+    const client = await new ApiClient().login(user.email, FACTORY_PASSWORD)
+    const page = await client.request('GET', '/', undefined, { accept: 'text/html' })
+    expect(page.status).toBe(200)
+    expect(page.body).toContain('Page Session Tester')
+    // The payload carries the session's claim and the person, nothing more (no hash, no e-mail of others).
+    expect(page.body).not.toContain('scrypt')
+    const admin = await signedIn(DEMO.admin)
+    expect((await admin.patch(`/api/users/${user.id}`, { active: false })).status).toBe(200)
+    const after = await client.request('GET', '/', undefined, { accept: 'text/html' })
+    expect(after.status).toBe(302)
+    expect(after.headers.get('location')).toMatch(/^\/login/)
+    expect(String(after.body)).not.toContain('Page Session Tester')
+  })
+
   it('a role change ends the session, and the new role applies after signing in again', async () => {
     const user = await makeUser({ role: 'technician' })
     const client = await new ApiClient().login(user.email, FACTORY_PASSWORD)
