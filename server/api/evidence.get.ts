@@ -13,7 +13,7 @@ export default defineEventHandler(async (event) => {
   if (q.procedure) {
     const live = await liveProcedureFacts(q.procedure)
     if (!live) throw createError({ statusCode: 404, message: 'No such live procedure.' })
-    return await evidenceFor({ deviceType: q.deviceType ?? live.deviceType, symptoms: q.symptoms.length ? q.symptoms : live.symptoms, procedureId: live.procedureId })
+    return await evidenceFor({ deviceType: q.deviceType ?? live.deviceType, symptoms: q.symptoms.length ? q.symptoms : live.symptoms, procedureId: live.procedureId, candidates: live.causes })
   }
   return await evidenceFor({ deviceType: q.deviceType!, symptoms: q.symptoms })
 })

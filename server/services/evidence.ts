@@ -39,19 +39,28 @@ export async function candidateCauses(opts: { deviceType: string, symptoms: stri
   return out
 }
 
-/** The device type and symptoms of an active procedure's live revision, read as those two parts only. */
-export async function liveProcedureFacts(slug: string): Promise<{ procedureId: number, deviceType: string, symptoms: string[] } | null> {
+/**
+ * An active procedure's live revision, as far as evidence needs it: its device type, symptoms and
+ * causes, in one query that reads only those parts of the content.
+ */
+export async function liveProcedureFacts(slug: string): Promise<{ procedureId: number, deviceType: string, symptoms: string[], causes: CandidateCause[] } | null> {
   const sequelize = useDb()
-  const proc = await Procedure.findOne({ where: { slug, status: 'active' }, attributes: ['id', 'publishedRevisionId'], raw: true })
-  if (!proc?.publishedRevisionId) return null
-  const rev = await Revision.findByPk(proc.publishedRevisionId, {
-    attributes: [
-      [sequelize.fn('JSON_VALUE', sequelize.col('content'), sequelize.literal("'$.deviceType'")), 'deviceType'],
-      [sequelize.fn('JSON_EXTRACT', sequelize.col('content'), sequelize.literal("'$.symptoms'")), 'symptoms'],
-    ],
+  const part = (fn: 'JSON_VALUE' | 'JSON_EXTRACT', path: string) => sequelize.fn(fn, sequelize.col('content'), sequelize.literal(`'${path}'`))
+  // A procedure has one published revision at a time: the live one (earlier ones are superseded).
+  const row = await Revision.findOne({
+    attributes: [[part('JSON_VALUE', '$.deviceType'), 'deviceType'], [part('JSON_EXTRACT', '$.symptoms'), 'symptoms'], [part('JSON_EXTRACT', '$.causes'), 'causes']],
+    where: { state: 'published' },
+    include: [{ model: Procedure, as: 'procedure', where: { slug, status: 'active' }, required: true, attributes: ['id', 'slug'] }],
     raw: true,
-  }) as unknown as { deviceType: string, symptoms: unknown } | null
-  return rev ? { procedureId: proc.id, deviceType: rev.deviceType, symptoms: jsonOf<string>(rev.symptoms) } : null
+    nest: true,
+  }) as unknown as (CandidateRow & { deviceType: string }) | null
+  if (!row) return null
+  return {
+    procedureId: row.procedure.id,
+    deviceType: row.deviceType,
+    symptoms: jsonOf<string>(row.symptoms),
+    causes: jsonOf<StoredCause>(row.causes).map(c => ({ procedureId: row.procedure.id, procedureSlug: row.procedure.slug, causeKey: c.key, label: c.name, prior: c.prior })),
+  }
 }
 
 interface CountRow { pid: number, ck: string, symptom: string, n: number }
@@ -109,9 +118,12 @@ export async function confirmedCounts(deviceType: string, symptoms: string[]) {
   return { byCause, total }
 }
 
-/** Causes ranked by naive Bayes over the team's confirmed records (formula in shared/utils/evidence.ts). */
-export async function evidenceFor(opts: { deviceType: string, symptoms: string[], procedureId?: number }): Promise<{ data: EvidenceCauseDto[], totalRecords: number }> {
-  const [candidates, counts] = await Promise.all([candidateCauses(opts), confirmedCounts(opts.deviceType, opts.symptoms)])
+/**
+ * Causes ranked by naive Bayes over the team's confirmed records (formula in shared/utils/evidence.ts).
+ * `candidates`, when the caller has them already (one procedure's causes), saves reading them again.
+ */
+export async function evidenceFor(opts: { deviceType: string, symptoms: string[], procedureId?: number, candidates?: CandidateCause[] }): Promise<{ data: EvidenceCauseDto[], totalRecords: number }> {
+  const [candidates, counts] = await Promise.all([opts.candidates ?? candidateCauses(opts), confirmedCounts(opts.deviceType, opts.symptoms)])
   const seen = new Set<string>()
   const unique = candidates.filter(c => !seen.has(`${c.procedureId}:${c.causeKey}`) && seen.add(`${c.procedureId}:${c.causeKey}`))
   if (!unique.length) return { data: [], totalRecords: counts.total }
