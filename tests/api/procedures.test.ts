@@ -223,6 +223,10 @@ describe('retiring', () => {
     expect((await editor.get(`/api/procedures/${procedure.slug}`)).body.procedure.status).toBe('retired')
     expect(JSON.stringify((await tech.get('/api/procedures?pageSize=100')).body)).not.toContain(procedure.slug)
     expect((await author.post(`/api/procedures/${procedure.slug}/revisions`, {})).status).toBe(409)
+    // The page an editor still reaches says "retired" and does not call the revision "Live".
+    const page = String((await editor.request('GET', `/procedures/${procedure.slug}`, undefined, { accept: 'text/html' })).body)
+    expect(page).toContain('data-testid="retired-banner"')
+    expect(page).not.toContain('data-testid="state-published"')
   })
 })
 
