@@ -62,6 +62,22 @@ export function useDb(): Sequelize {
   return sequelize
 }
 
+/**
+ * One part of a revision's JSON `content`, computed by MariaDB, so a query reads only what it
+ * needs of whole procedures: JSON_VALUE for a scalar ('$.title'), JSON_EXTRACT for an array or
+ * object ('$.symptoms'). Paths go in as a literal: Sequelize would turn a `$` in a string
+ * argument into `$$` (bind syntax) and the path would match nothing.
+ */
+export function contentPart(fn: 'JSON_VALUE' | 'JSON_EXTRACT', path: `$.${string}`) {
+  const db = useDb()
+  return db.fn(fn, db.col('content'), db.literal(`'${path}'`))
+}
+
+/** A JSON_EXTRACT part as the mariadb driver hands it back (text), or already parsed. */
+export function jsonArray<T>(value: unknown): T[] {
+  return Array.isArray(value) ? value : typeof value === 'string' ? JSON.parse(value) as T[] : []
+}
+
 /** InnoDB's answer when it chose this transaction as the victim of a deadlock (ER_LOCK_DEADLOCK). */
 export function isDeadlock(error: unknown): boolean {
   let e: unknown = error

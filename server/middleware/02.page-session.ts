@@ -7,8 +7,6 @@ import { toUserDto } from '../services/accounts'
 // route checks it (requireUser: session version, active), and handed to the renderer on the
 // event; app/plugins/session.server.ts puts it where useUserSession() and useAccount() read it.
 // Anyone not signed in, or whose session has ended, renders as signed out, as before.
-const SESSION_COOKIE = 'benchlore-session'
-
 export default defineEventHandler(async (event) => {
   if (event.method !== 'GET' || event.path.startsWith('/api/') || event.path.startsWith('/_nuxt/')) return
   if (!getCookie(event, SESSION_COOKIE)) return

@@ -1,7 +1,7 @@
 import { Op, QueryTypes, type Transaction } from 'sequelize'
 import { rankCauses } from '../../shared/utils/evidence'
 import type { EvidenceCauseDto } from '../../shared/types/records'
-import { Procedure, Revision, inTransaction, useDb } from '../db'
+import { Procedure, Revision, contentPart, inTransaction, jsonArray, useDb } from '../db'
 
 export interface CandidateCause { procedureId: number, procedureSlug: string, causeKey: string, label: string, prior: number }
 
@@ -10,7 +10,12 @@ export const causeId = (procedureSlug: string, causeKey: string) => `${procedure
 
 type CandidateRow = { symptoms: unknown, causes: unknown, procedure: { id: number, slug: string } }
 type StoredCause = { key: string, name: string, prior: number }
-const jsonOf = <T>(v: unknown): T[] => (Array.isArray(v) ? v : typeof v === 'string' ? JSON.parse(v) as T[] : [])
+/** The two parts of a revision evidence reads (built per query: the database must be open). */
+const symptomsAndCauses = (): Array<[ReturnType<typeof contentPart>, string]> => [[contentPart('JSON_EXTRACT', '$.symptoms'), 'symptoms'], [contentPart('JSON_EXTRACT', '$.causes'), 'causes']]
+
+function causesOf(row: CandidateRow): CandidateCause[] {
+  return jsonArray<StoredCause>(row.causes).map(c => ({ procedureId: row.procedure.id, procedureSlug: row.procedure.slug, causeKey: c.key, label: c.name, prior: c.prior }))
+}
 
 /**
  * Causes of the published, active procedures for a device type that share a symptom (all of one
@@ -18,25 +23,19 @@ const jsonOf = <T>(v: unknown): T[] => (Array.isArray(v) ? v : typeof v === 'str
  * procedures with their steps.
  */
 export async function candidateCauses(opts: { deviceType: string, symptoms: string[], procedureId?: number }): Promise<CandidateCause[]> {
-  const sequelize = useDb()
-  const part = (path: string) => sequelize.fn('JSON_EXTRACT', sequelize.col('content'), sequelize.literal(`'${path}'`))
   const rows = await Revision.findAll({
-    attributes: [[part('$.symptoms'), 'symptoms'], [part('$.causes'), 'causes']],
+    attributes: symptomsAndCauses(),
     where: opts.procedureId
       ? { state: 'published', procedureId: opts.procedureId }
-      : { state: 'published', [Op.and]: [sequelize.where(sequelize.fn('JSON_VALUE', sequelize.col('content'), sequelize.literal("'$.deviceType'")), opts.deviceType)] },
+      : { state: 'published', [Op.and]: [useDb().where(contentPart('JSON_VALUE', '$.deviceType'), opts.deviceType)] },
     include: [{ model: Procedure, as: 'procedure', where: { status: 'active' }, required: true, attributes: ['id', 'slug'] }],
     order: [['id', 'ASC']],
     raw: true,
     nest: true,
   }) as unknown as CandidateRow[]
   const wanted = new Set(opts.symptoms)
-  const out: CandidateCause[] = []
-  for (const r of rows) {
-    if (!opts.procedureId && wanted.size && !jsonOf<string>(r.symptoms).some(s => wanted.has(s))) continue
-    for (const c of jsonOf<StoredCause>(r.causes)) out.push({ procedureId: r.procedure.id, procedureSlug: r.procedure.slug, causeKey: c.key, label: c.name, prior: c.prior })
-  }
-  return out
+  const shared = (r: CandidateRow) => opts.procedureId || !wanted.size || jsonArray<string>(r.symptoms).some(s => wanted.has(s))
+  return rows.filter(shared).flatMap(causesOf)
 }
 
 /**
@@ -44,23 +43,16 @@ export async function candidateCauses(opts: { deviceType: string, symptoms: stri
  * causes, in one query that reads only those parts of the content.
  */
 export async function liveProcedureFacts(slug: string): Promise<{ procedureId: number, deviceType: string, symptoms: string[], causes: CandidateCause[] } | null> {
-  const sequelize = useDb()
-  const part = (fn: 'JSON_VALUE' | 'JSON_EXTRACT', path: string) => sequelize.fn(fn, sequelize.col('content'), sequelize.literal(`'${path}'`))
   // A procedure has one published revision at a time: the live one (earlier ones are superseded).
   const row = await Revision.findOne({
-    attributes: [[part('JSON_VALUE', '$.deviceType'), 'deviceType'], [part('JSON_EXTRACT', '$.symptoms'), 'symptoms'], [part('JSON_EXTRACT', '$.causes'), 'causes']],
+    attributes: [[contentPart('JSON_VALUE', '$.deviceType'), 'deviceType'], ...symptomsAndCauses()],
     where: { state: 'published' },
     include: [{ model: Procedure, as: 'procedure', where: { slug, status: 'active' }, required: true, attributes: ['id', 'slug'] }],
     raw: true,
     nest: true,
   }) as unknown as (CandidateRow & { deviceType: string }) | null
   if (!row) return null
-  return {
-    procedureId: row.procedure.id,
-    deviceType: row.deviceType,
-    symptoms: jsonOf<string>(row.symptoms),
-    causes: jsonOf<StoredCause>(row.causes).map(c => ({ procedureId: row.procedure.id, procedureSlug: row.procedure.slug, causeKey: c.key, label: c.name, prior: c.prior })),
-  }
+  return { procedureId: row.procedure.id, deviceType: row.deviceType, symptoms: jsonArray<string>(row.symptoms), causes: causesOf(row) }
 }
 
 interface CountRow { pid: number, ck: string, symptom: string, n: number }

@@ -10,7 +10,7 @@ import type {
 } from '../../shared/types/procedure-api'
 import { slugify } from '../../shared/utils/slug'
 import { describeZodError } from '../../shared/utils/validation'
-import { Attachment, DeviceType, Procedure, ReviewComment, Revision, Symptom, User, afterModelChange, inTransaction, useDb } from '../db'
+import { Attachment, DeviceType, Procedure, ReviewComment, Revision, Symptom, User, afterModelChange, contentPart, inTransaction, jsonArray, useDb } from '../db'
 import { renderMarkdown } from '../utils/markdown'
 import { recordAudit } from './audit'
 import { notifyProcedureChanged } from './change-log'
@@ -239,7 +239,7 @@ type ListRow = { id: number, number: number, publishedAt: Date | string, title: 
 export async function listPublished(filter: { deviceType?: string, symptom?: string, page: number, pageSize: number }): Promise<Paginated<ProcedureListItemDto>> {
   const sequelize = useDb()
   const where: WhereOptions[] = [{ state: 'published' }]
-  if (filter.deviceType) where.push(sequelize.where(sequelize.fn('JSON_VALUE', sequelize.col('content'), sequelize.literal("'$.deviceType'")), filter.deviceType))
+  if (filter.deviceType) where.push(sequelize.where(contentPart('JSON_VALUE', '$.deviceType'), filter.deviceType))
   const mergedInto = await mergedSymptomSlugs()
   const resolve = (slugs: string[]) => [...new Set(slugs.map(s => mergedInto.get(s) ?? s))]
   if (filter.symptom) {
@@ -249,9 +249,8 @@ export async function listPublished(filter: { deviceType?: string, symptom?: str
   }
   // Only the parts of the content a list shows: parsing whole procedures (steps and all) for a
   // page of 20 was most of this route's time.
-  const part = (fn: 'JSON_VALUE' | 'JSON_EXTRACT', path: string) => sequelize.fn(fn, sequelize.col('content'), sequelize.literal(`'${path}'`))
   const { rows: found, count } = await Revision.findAndCountAll({
-    attributes: ['id', 'number', 'publishedAt', [part('JSON_VALUE', '$.title'), 'title'], [part('JSON_VALUE', '$.deviceType'), 'deviceType'], [part('JSON_EXTRACT', '$.symptoms'), 'symptoms'], [part('JSON_EXTRACT', '$.hazards'), 'hazards']],
+    attributes: ['id', 'number', 'publishedAt', [contentPart('JSON_VALUE', '$.title'), 'title'], [contentPart('JSON_VALUE', '$.deviceType'), 'deviceType'], [contentPart('JSON_EXTRACT', '$.symptoms'), 'symptoms'], [contentPart('JSON_EXTRACT', '$.hazards'), 'hazards']],
     where: { [Op.and]: where },
     include: [{ model: Procedure, as: 'procedure', attributes: ['id', 'slug'], where: { status: 'active' }, required: true }],
     order: [['publishedAt', 'DESC'], ['id', 'DESC']],
@@ -260,8 +259,7 @@ export async function listPublished(filter: { deviceType?: string, symptom?: str
     raw: true,
     nest: true,
   })
-  const jsonList = (v: unknown): string[] => (Array.isArray(v) ? v : typeof v === 'string' ? JSON.parse(v) as string[] : [])
-  const rows = (found as unknown as ListRow[]).map(r => ({ ...r, symptoms: jsonList(r.symptoms), hazards: jsonList(r.hazards) as RevisionContent['hazards'] }))
+  const rows = (found as unknown as ListRow[]).map(r => ({ ...r, symptoms: jsonArray<string>(r.symptoms), hazards: jsonArray<RevisionContent['hazards'][number]>(r.hazards) }))
   const slugs = new Set<string>()
   for (const r of rows) for (const s of [r.deviceType, ...resolve(r.symptoms)]) slugs.add(s)
   const [types, symptoms] = await Promise.all([

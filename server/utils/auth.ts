@@ -22,7 +22,8 @@ export async function requireUser(event: H3Event): Promise<User> {
   return user
 }
 
-const SESSION_COOKIE = 'benchlore-session'
+/** The session cookie's name (runtimeConfig.session.name in nuxt.config.ts). */
+export const SESSION_COOKIE = 'benchlore-session'
 const CLAIM_TTL_MS = 60_000
 type Claim = { id: number, role: Role, sv: number }
 const claims = new Map<string, { claim: Claim, until: number }>()

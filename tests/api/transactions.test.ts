@@ -4,8 +4,9 @@ import { makeUser, testDb } from '../helpers/db'
 
 /**
  * Two transactions that lock the same two rows in opposite order: the classic deadlock. InnoDB
- * detects it at once and rolls one back (MariaDB KB, "InnoDB Lock Modes"/deadlocks: "always be
- * prepared to re-issue a transaction if it fails due to deadlock", common practice).
+ * detects it at once and rolls one back with error 1213 (ER_LOCK_DEADLOCK); the MySQL Reference
+ * Manual, "How to Minimize and Handle Deadlocks", says to "always be prepared to re-issue a
+ * transaction if it fails due to deadlock" (quoted from memory; common practice on InnoDB).
  */
 async function crossLock(attempts: number) {
   testDb()
