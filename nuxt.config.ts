@@ -3,15 +3,8 @@ import { fileURLToPath } from 'node:url'
 // Every value here can be overridden at run time by the matching NUXT_* environment variable
 // (README.md, "Configuration"). The built server reads no .env file.
 export default defineNuxtConfig({
-  compatibilityDate: '2026-11-01',
-  // A separate build folder lets two dev servers run side by side (BENCHLORE_BUILD_DIR=.nuxt-b).
-  buildDir: process.env.BENCHLORE_BUILD_DIR || '.nuxt',
+  modules: ['@nuxtjs/tailwindcss', '@pinia/nuxt', 'nuxt-auth-utils', '@nuxt/eslint'],
   devtools: { enabled: false },
-  telemetry: false,
-  modules: ['@nuxtjs/tailwindcss', '@pinia/nuxt', 'nuxt-auth-utils'],
-  // The session reaches server-rendered pages without an internal request: app/plugins/session.*.ts.
-  auth: { loadStrategy: 'none' },
-  css: ['~/assets/css/main.css'],
   app: {
     head: {
       htmlAttrs: { lang: 'en' },
@@ -24,6 +17,7 @@ export default defineNuxtConfig({
       link: [{ rel: 'icon', type: 'image/svg+xml', href: '/favicon.svg' }],
     },
   },
+  css: ['~/assets/css/main.css'],
   runtimeConfig: {
     appOrigin: 'http://127.0.0.1:3000',
     db: { host: '127.0.0.1', port: 3307, name: 'benchlore', user: 'benchlore', password: '' },
@@ -38,8 +32,19 @@ export default defineNuxtConfig({
       cookie: { sameSite: 'lax', secure: false, httpOnly: true },
     },
   },
+  // A separate build folder lets two dev servers run side by side (BENCHLORE_BUILD_DIR=.nuxt-b).
+  buildDir: process.env.BENCHLORE_BUILD_DIR || '.nuxt',
+  compatibilityDate: '2026-11-01',
+  nitro: {
+    experimental: { tasks: false },
+  },
+  vite: {
+    build: { chunkSizeWarningLimit: 800 },
+    // Side-by-side dev servers (BENCHLORE_BUILD_DIR) must not share one dependency cache.
+    cacheDir: process.env.BENCHLORE_BUILD_DIR ? `node_modules/.cache/vite-${process.env.BENCHLORE_BUILD_DIR.replace(/[^\w-]/g, '')}` : undefined,
+  },
   typescript: { strict: true, typeCheck: false },
-  tailwindcss: { cssPath: false, viewer: false },
+  telemetry: false,
   hooks: {
     // Benchlore's own error handler runs first: JSON errors for /api, 503 for an unreachable
     // database; everything else falls through to Nuxt's page-rendering handler.
@@ -49,12 +54,9 @@ export default defineNuxtConfig({
       nitroConfig.errorHandler = [own, ...(Array.isArray(existing) ? existing : existing ? [existing] : [])]
     },
   },
-  nitro: {
-    experimental: { tasks: false },
-  },
-  vite: {
-    build: { chunkSizeWarningLimit: 800 },
-    // Side-by-side dev servers (BENCHLORE_BUILD_DIR) must not share one dependency cache.
-    cacheDir: process.env.BENCHLORE_BUILD_DIR ? `node_modules/.cache/vite-${process.env.BENCHLORE_BUILD_DIR.replace(/[^\w-]/g, '')}` : undefined,
-  },
+  // The session reaches server-rendered pages without an internal request: app/plugins/session.*.ts.
+  auth: { loadStrategy: 'none' },
+  // One house style, held by `npm run lint` (eslint.config.mjs builds on this).
+  eslint: { config: { stylistic: true } },
+  tailwindcss: { cssPath: false, viewer: false },
 })

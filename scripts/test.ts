@@ -60,6 +60,24 @@ function printServerErrors() {
   for (const s of sections.slice(-8)) console.error(`${s}\n`)
 }
 
+/**
+ * The house style and the types, before any suite: a full run fails on either. A run of chosen
+ * files (`npm test -- tests/api/x.test.ts`) skips them to stay quick while editing.
+ */
+function checkStyleAndTypes() {
+  if (process.argv.length > 2) {
+    done('lint and typecheck skipped: this run names its test files')
+    return
+  }
+  for (const [what, args] of [['lint (eslint)', ['eslint', '.']], ['typecheck (nuxt typecheck)', ['nuxt', 'typecheck']]] as const) {
+    const t = Date.now()
+    step(`${what}…`)
+    const r = spawnSync(join(ROOT, 'node_modules', '.bin', args[0]), args.slice(1), { cwd: ROOT, stdio: 'inherit' })
+    if (r.status !== 0) throw new Error(`${what} failed; see the output above`)
+    done(`${what} passed`, t)
+  }
+}
+
 let code = 1
 process.on('SIGINT', () => void stopAll().then(() => process.exit(130)))
 process.on('SIGTERM', () => void stopAll().then(() => process.exit(143)))
@@ -68,6 +86,7 @@ try {
   rmSync(profile.dataDir, { recursive: true, force: true })
   mkdirSync(profile.dataDir, { recursive: true })
   ensureChromium()
+  checkStyleAndTypes()
   await Promise.all([startDatabase(profile, { fresh: true }), startObjectStore(profile), startMailCatcher(profile)])
   step('database: applying migrations to the empty test database…')
   await runScript(profile, 'scripts/migrate.ts')

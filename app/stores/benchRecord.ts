@@ -21,10 +21,10 @@ export interface BenchWork {
   photos: BenchPhoto[]
 }
 
-export type StepReading =
-  | { state: 'empty' }
-  | { state: 'unreadable', error: string }
-  | { state: 'judged', verdict: ReadingVerdict, pass: boolean, display: string, expected: string, raises: string[] }
+export type StepReading
+  = | { state: 'empty' }
+    | { state: 'unreadable', error: string }
+    | { state: 'judged', verdict: ReadingVerdict, pass: boolean, display: string, expected: string, raises: string[] }
 
 /** A failing reading that raised a cause, as the "likely causes" panel names it. */
 export interface RaisingReading {
@@ -45,8 +45,6 @@ export interface LikelyCause {
   support: string | null
   raisedBy: RaisingReading[]
 }
-
-
 
 function emptyWork(): BenchWork {
   return { unit: { model: '', serial: '', jobRef: '' }, steps: {}, notes: '', photos: [] }

@@ -53,7 +53,6 @@ export interface DraftContent {
 /** A stored image as the editor needs it (an upload answers without mime, bytes or caption). */
 export type DraftAttachment = Pick<AttachmentDto, 'id' | 'url' | 'thumbnailUrl' | 'width' | 'height'> & Partial<Pick<AttachmentDto, 'mime' | 'bytes'>> & { caption: string }
 
-
 export interface DraftVersion { content: DraftContent, changeNote: string }
 
 export const DEFAULT_PRIOR = 0.2

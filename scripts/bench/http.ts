@@ -103,7 +103,9 @@ async function cannon(opts: AcOptions, record = true): Promise<Run> {
   // same response, so the label set by the first is the one the second belongs to.
   const requests = opts.requests?.map((r) => {
     const own = labelOf(r.path)
-    return { ...r, onResponse: () => { label = own } }
+    return { ...r, onResponse: () => {
+      label = own
+    } }
   })
   let rotate = 0
   const instance = autocannon({
@@ -294,12 +296,12 @@ try {
   row(`GET /api/procedures/${slug}`, api, api, `≥ 25 % of bare req/s: ${(ratio * 100).toFixed(1)} % ${ok(ratio >= 0.25 && api.non2xx + api.errors === 0)}`)
   row(`SSR /procedures/${slug}`, ssr, ssr, `p95 ≤ 80 ms at 10 conns: ${f(ssrP95)} ms ${ok(ssrP95 <= 80 && ssr.non2xx + ssr.errors === 0)}`)
   row('  ref: GET /api/me (session check only)', me, me, `${((me.reqPerSec / bare.reqPerSec) * 100).toFixed(1)} % of bare: one user-row query, no other work`)
-  row("  ref: SSR /login (public, no data)", loginPage, loginPage, `the smallest page: Nuxt's own floor for target 2`)
+  row('  ref: SSR /login (public, no data)', loginPage, loginPage, `the smallest page: Nuxt's own floor for target 2`)
   row('mixed read/search load', load, load, `0 errors, p99 ≤ 250 ms: ${loadErrors} errors, ${f(loadP99)} ms ${ok(loadErrors === 0 && loadP99 <= 250)}`)
   for (const [label, e] of [...load.byLabel.entries()].sort((a, b) => b[1].ms.length - a[1].ms.length)) {
     row(`  ${label}`, undefined, { reqPerSec: e.ms.length / load.seconds, ms: e.ms, non2xx: e.non2xx }, `${((e.ms.length / load.ms.length) * 100).toFixed(0)} % of responses`)
   }
-  const runs: [string, Run][] = [['bare', bare], ['api', api], ['ssr', ssr], ['me', me], ["login", loginPage], ['load', load]]
+  const runs: [string, Run][] = [['bare', bare], ['api', api], ['ssr', ssr], ['me', me], ['login', loginPage], ['load', load]]
   const codes = runs.map(([n, r]) => `${n} ${r.codes}${r.timeouts ? `, ${r.timeouts} timeouts` : ''}`).join(' · ')
   console.log(`\nstatus codes: ${codes}`)
   console.log(`targets 1 and 2 ran ${PHASE_SECONDS} s each, target 3 ${LOAD_SECONDS} s; each after a ${WARM_SECONDS} s warm-up that is not counted. p95/p99 are nearest-rank over every response time.`)

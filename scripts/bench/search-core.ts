@@ -42,9 +42,9 @@ const mb = (bytes: number): string => `${(bytes / 1024 / 1024).toFixed(1)} MB`
 const quantile = (sorted: number[], q: number): number => sorted[Math.min(sorted.length - 1, Math.floor(q * sorted.length))] ?? NaN
 const ms = (x: number): string => `${x.toFixed(2)} ms`
 
-console.log(`machine: ${os.cpus().length} CPUs, load average ${os.loadavg().map((l) => l.toFixed(2)).join(' / ')} (1, 5, 15 min)`)
+console.log(`machine: ${os.cpus().length} CPUs, load average ${os.loadavg().map(l => l.toFixed(2)).join(' / ')} (1, 5, 15 min)`)
 const corpus = generateCorpus(n, seed)
-const words = corpus.docs.map((d) => d.text.split(/\s+/).length).sort((a, b) => a - b)
+const words = corpus.docs.map(d => d.text.split(/\s+/).length).sort((a, b) => a - b)
 console.log(`corpus: ${corpus.docs.length} procedures (text ${words[0]}–${words[words.length - 1]} words, median ${quantile(words, 0.5)}), ${corpus.vocabulary.symptoms.length} symptoms, ${corpus.vocabulary.deviceTypes.length} device types, ${corpus.queries.length} labelled queries`)
 
 // Build (synchronous), with the heap it adds; repeated, each into a fresh index.
@@ -93,7 +93,7 @@ function latency(label: string, queries: string[]): void {
   console.log(`${label}: ${queries.length} queries (each the least of ${repeat} runs), p50 ${ms(quantile(best, 0.5))}, p95 ${ms(quantile(best, 0.95))}, max ${ms(best[best.length - 1]!)}   [targets p50 ≤ 5, p95 ≤ 20]`)
 }
 
-latency('labelled queries', corpus.queries.map((q) => q.q))
+latency('labelled queries', corpus.queries.map(q => q.q))
 const typing: string[] = []
 corpus.queries.forEach((q, i) => {
   if (i % typingEvery !== 0) return
@@ -102,14 +102,14 @@ corpus.queries.forEach((q, i) => {
 latency(`as-you-type prefixes (every ${typingEvery}th query, each length ≥ 2)`, typing)
 
 // Quality.
-type Tally = { count: number; rr: number; recall5: number; first: number }
+type Tally = { count: number, rr: number, recall5: number, first: number }
 const tallies = new Map<string, Tally>()
 const misses: string[] = []
 for (const lq of corpus.queries as LabelledQuery[]) {
-  const hits = index.search({ q: lq.q, limit: 20 }).hits.map((h) => h.id)
-  const rank = hits.findIndex((id) => lq.relevant.includes(id))
+  const hits = index.search({ q: lq.q, limit: 20 }).hits.map(h => h.id)
+  const rank = hits.findIndex(id => lq.relevant.includes(id))
   const top5 = new Set(hits.slice(0, 5))
-  const recall5 = lq.relevant.filter((id) => top5.has(id)).length / lq.relevant.length
+  const recall5 = lq.relevant.filter(id => top5.has(id)).length / lq.relevant.length
   for (const key of [lq.kind, 'all']) {
     const t = tallies.get(key) ?? { count: 0, rr: 0, recall5: 0, first: 0 }
     t.count++

@@ -28,20 +28,28 @@ export function startProfile(): StackProfile {
   }
 }
 
+/**
+ * Several checkouts of the project on one machine (git worktrees) can run their test and bench
+ * stacks side by side: BENCHLORE_PORT_OFFSET moves every port of those stacks by that much.
+ */
+const portOffset = () => num(process.env.BENCHLORE_PORT_OFFSET, 0)
+
 export function testProfile(): StackProfile {
+  const o = portOffset()
   return {
     name: 'test',
     dataDir: join(ROOT, '.data-test'),
-    ports: { app: 3100, db: 3317, s3: 4578, smtp: 2535 },
+    ports: { app: 3100 + o, db: 3317 + o, s3: 4578 + o, smtp: 2535 + o },
   }
 }
 
 /** Benchmarks get a throw-away stack of their own, like the tests. */
 export function benchProfile(): StackProfile {
+  const o = portOffset()
   return {
     name: 'test',
     dataDir: join(ROOT, '.data-bench'),
-    ports: { app: 3200, db: 3327, s3: 4588, smtp: 2545 },
+    ports: { app: 3200 + o, db: 3327 + o, s3: 4588 + o, smtp: 2545 + o },
   }
 }
 

@@ -1,5 +1,5 @@
 import * as mariadb from 'mariadb'
-import { Sequelize, type ModelStatic, type Transaction, type TransactionOptions } from 'sequelize'
+import { Sequelize, type Model, type ModelStatic, type Transaction, type TransactionOptions } from 'sequelize'
 import { initModels } from './models'
 
 export interface DbConfig {
@@ -118,7 +118,7 @@ const BULK_HOOKS = ['afterBulkCreate', 'afterBulkUpdate', 'afterBulkDestroy'] as
  * Sequelize in this process: after the transaction commits (so a reader refilling a cache sees
  * the new value), or at once outside a transaction. Raw SQL does not pass through model hooks.
  */
-export function afterModelChange(models: Array<ModelStatic<any>>, listener: () => void): void {
+export function afterModelChange(models: Array<ModelStatic<Model>>, listener: () => void): void {
   const fire = (options: HookOptions) => {
     if (options?.transaction) options.transaction.afterCommit(() => listener())
     else listener()

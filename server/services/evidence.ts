@@ -75,7 +75,7 @@ export async function adjustCauseCounts(r: { deviceType: string, causeProcedureI
 export async function rebuildCauseCounts(): Promise<void> {
   await inTransaction(async (transaction) => {
     await useDb().query('DELETE FROM cause_counts', { type: QueryTypes.DELETE, transaction })
-    const closed = "r.status = 'closed' AND r.cause_key IS NOT NULL"
+    const closed = 'r.status = \'closed\' AND r.cause_key IS NOT NULL'
     await useDb().query(`INSERT INTO cause_counts (device_type, cause_procedure_id, cause_key, symptom, n)
       SELECT r.device_type, r.cause_procedure_id, r.cause_key, '', COUNT(*) FROM repair_records r WHERE ${closed} GROUP BY 1, 2, 3
       UNION ALL

@@ -245,7 +245,7 @@ export async function listPublished(filter: { deviceType?: string, symptom?: str
   if (filter.symptom) {
     // A procedure written with a symptom since merged into this one is listed under it.
     const wanted = [filter.symptom, ...[...mergedInto].filter(([, into]) => into === filter.symptom).map(([from]) => from)]
-    where.push({ [Op.or]: wanted.map(s => sequelize.where(sequelize.fn('JSON_CONTAINS', sequelize.col('content'), JSON.stringify(s), sequelize.literal("'$.symptoms'")), 1)) })
+    where.push({ [Op.or]: wanted.map(s => sequelize.where(sequelize.fn('JSON_CONTAINS', sequelize.col('content'), JSON.stringify(s), sequelize.literal('\'$.symptoms\'')), 1)) })
   }
   // Only the parts of the content a list shows: parsing whole procedures (steps and all) for a
   // page of 20 was most of this route's time.

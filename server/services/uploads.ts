@@ -1,7 +1,8 @@
 import { createHash, randomUUID } from 'node:crypto'
 import { createError } from 'h3'
 import sharp from 'sharp'
-import { Attachment, User } from '../db'
+import type { User } from '../db'
+import { Attachment } from '../db'
 import { ObjectStoreUnavailable, type ObjectStore } from './storage'
 import { toAttachmentDto } from './procedures'
 

@@ -31,16 +31,16 @@ export type BaseUnit = (typeof BASE_UNITS)[number]
 
 /** SI prefixes a technician may type, with their power of ten. Both micro signs are accepted. */
 export const SI_PREFIXES: Record<string, number> = {
-  p: -12,
-  n: -9,
-  µ: -6,
-  μ: -6,
-  u: -6,
-  m: -3,
+  'p': -12,
+  'n': -9,
+  'µ': -6,
+  'μ': -6,
+  'u': -6,
+  'm': -3,
   '': 0,
-  k: 3,
-  M: 6,
-  G: 9,
+  'k': 3,
+  'M': 6,
+  'G': 9,
 }
 
 /**

@@ -2,7 +2,6 @@ import { z } from 'zod'
 import { HAZARDS } from './hazards'
 import { MeasurementSpec } from './measurement'
 
-
 export const REVISION_STATES = ['draft', 'in_review', 'published', 'superseded', 'changes_requested', 'rejected'] as const
 export type RevisionState = (typeof REVISION_STATES)[number]
 

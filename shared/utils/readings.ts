@@ -22,9 +22,9 @@ export interface ParseReadingOptions {
 
 export type ReadingVerdict = 'in_range' | 'low' | 'high' | 'open'
 
-export type EvaluateReadingResult =
-  | { ok: true, parsed: ParsedReading, verdict: ReadingVerdict, pass: boolean, expected: string, raises: string[] }
-  | { ok: false, error: string }
+export type EvaluateReadingResult
+  = | { ok: true, parsed: ParsedReading, verdict: ReadingVerdict, pass: boolean, expected: string, raises: string[] }
+    | { ok: false, error: string }
 
 /** IEC 60062 tolerance letters, in percent. */
 export const TOLERANCE_LETTERS: Readonly<Record<string, number>> = {

@@ -116,7 +116,7 @@ describe('API conventions', () => {
     expect(cross.status).toBe(403)
     const site = await admin.post('/api/users/invite', { email: 'csrf@test.example', role: 'technician' }, { 'sec-fetch-site': 'cross-site' })
     expect(site.status).toBe(403)
-    const own = await admin.post('/api/users/invite', { email: 'not-an-email', role: 'technician' }, { origin: admin.baseUrl, 'sec-fetch-site': 'same-origin' })
+    const own = await admin.post('/api/users/invite', { email: 'not-an-email', role: 'technician' }, { 'origin': admin.baseUrl, 'sec-fetch-site': 'same-origin' })
     expect(own.status).toBe(400)
   })
   it('names the failing field in validation errors', async () => {

@@ -59,7 +59,7 @@ describe('search over published procedures', () => {
 })
 
 describe('what search shows follows the database, on every instance', () => {
-  const B_PORT = 3101
+  const B_PORT = testProfile().ports.app + 1
   const B = `http://127.0.0.1:${B_PORT}`
   beforeAll(async () => {
     await startApp(testProfile(), { port: B_PORT, instance: 'app-b' })

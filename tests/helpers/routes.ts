@@ -8,7 +8,6 @@ export interface ApiRoute {
   file: string
 }
 
-
 /** Every route file under server/api, as method + path (catch-alls without a method are left out). */
 export function listApiRoutes(root = join(process.cwd(), 'server', 'api')): ApiRoute[] {
   const out: ApiRoute[] = []

@@ -5,12 +5,12 @@ import { Postings } from '../../server/services/search/postings'
 // The reference is JavaScript's own Map (ECMAScript semantics): Postings stands in for the
 // Map<number, number> MiniSearch keeps per term and field, iterating in ascending id order.
 
-type Op =
-  | { kind: 'append'; value: number }
-  | { kind: 'set'; key: number; value: number }
-  | { kind: 'delete'; key: number }
-  | { kind: 'bump'; next: boolean; cap: number }
-  | { kind: 'clear' }
+type Op
+  = | { kind: 'append', value: number }
+    | { kind: 'set', key: number, value: number }
+    | { kind: 'delete', key: number }
+    | { kind: 'bump', next: boolean, cap: number }
+    | { kind: 'clear' }
 
 const opArb: fc.Arbitrary<Op> = fc.oneof(
   { weight: 6, arbitrary: fc.record({ kind: fc.constant('append' as const), value: fc.integer({ min: 1, max: 9 }) }) },

@@ -8,13 +8,13 @@ import { ProcedureSearchIndex, type SearchVocabulary } from '../../server/servic
 // device and title), decided by reading them, not by running the search.
 
 const vocabulary: SearchVocabulary = {
-  symptoms: DEMO_SYMPTOMS.map((s) => ({ slug: s.slug, name: s.name, synonyms: s.synonyms })),
-  deviceTypes: DEMO_DEVICE_TYPES.map((d) => ({ slug: d.slug, name: d.name })),
+  symptoms: DEMO_SYMPTOMS.map(s => ({ slug: s.slug, name: s.name, synonyms: s.synonyms })),
+  deviceTypes: DEMO_DEVICE_TYPES.map(d => ({ slug: d.slug, name: d.name })),
 }
 
 const idOf = new Map(DEMO_PROCEDURES.map((p, i) => [p.slug, i + 1]))
 const slugOf = new Map(DEMO_PROCEDURES.map((p, i) => [i + 1, p.slug]))
-const published = (p: (typeof DEMO_PROCEDURES)[number]) => p.revisions.find((r) => r.state === 'published')
+const published = (p: (typeof DEMO_PROCEDURES)[number]) => p.revisions.find(r => r.state === 'published')
 const DAY = 86_400_000
 const NOW = Date.UTC(2026, 0, 15)
 
@@ -30,14 +30,14 @@ function buildDemoIndex(): ProcedureSearchIndex {
   return index
 }
 
-const RETIRED = DEMO_PROCEDURES.filter((p) => p.retired).map((p) => p.slug)
-const UNPUBLISHED = DEMO_PROCEDURES.filter((p) => !published(p)).map((p) => p.slug)
+const RETIRED = DEMO_PROCEDURES.filter(p => p.retired).map(p => p.slug)
+const UNPUBLISHED = DEMO_PROCEDURES.filter(p => !published(p)).map(p => p.slug)
 
-type Labelled = { q: string; expect: string[]; kind: 'plain' | 'typo' | 'synonym' | 'partial' | 'contraction' | 'model' }
+type Labelled = { q: string, expect: string[], kind: 'plain' | 'typo' | 'synonym' | 'partial' | 'contraction' | 'model' }
 const QUERIES: Labelled[] = [
   // Does not dim: the VR-240 stuck at full, and the half-cycle procedure, which lists it too.
   { q: 'wont dim', expect: ['vr240-stuck-at-full', 'vr240-half-cycle-flicker'], kind: 'contraction' },
-  { q: "won't dim", expect: ['vr240-stuck-at-full', 'vr240-half-cycle-flicker'], kind: 'contraction' },
+  { q: 'won\'t dim', expect: ['vr240-stuck-at-full', 'vr240-half-cycle-flicker'], kind: 'contraction' },
   { q: 'dimmer doesnt dim', expect: ['vr240-stuck-at-full', 'vr240-half-cycle-flicker'], kind: 'contraction' },
   { q: 'stuck at full brightness', expect: ['vr240-stuck-at-full', 'vr240-half-cycle-flicker'], kind: 'synonym' },
   { q: 'vr240 stuck on full', expect: ['vr240-stuck-at-full'], kind: 'model' },
@@ -85,7 +85,7 @@ const QUERIES: Labelled[] = [
   // Stays on; switches on by itself.
   { q: 'pir stays on', expect: ['px10-stays-on'], kind: 'plain' },
   { q: 'lights stay on after time out', expect: ['px10-stays-on'], kind: 'synonym' },
-  { q: "won't switch off", expect: ['px10-stays-on'], kind: 'contraction' },
+  { q: 'won\'t switch off', expect: ['px10-stays-on'], kind: 'contraction' },
   { q: 'comes on at night by itself', expect: ['px10-stays-on'], kind: 'synonym' },
   // Does not detect motion.
   { q: 'pir not triggering', expect: ['px10-no-detection'], kind: 'synonym' },
@@ -117,21 +117,21 @@ const QUERIES: Labelled[] = [
 describe('search relevance on the demo library', () => {
   const index = buildDemoIndex()
   const rows = QUERIES.map((lq) => {
-    const hits = index.search({ q: lq.q, limit: 20 }).hits.map((h) => slugOf.get(h.id)!)
-    const rank = hits.findIndex((s) => lq.expect.includes(s))
-    const recall5 = lq.expect.filter((s) => hits.slice(0, 5).includes(s)).length / lq.expect.length
+    const hits = index.search({ q: lq.q, limit: 20 }).hits.map(h => slugOf.get(h.id)!)
+    const rank = hits.findIndex(s => lq.expect.includes(s))
+    const recall5 = lq.expect.filter(s => hits.slice(0, 5).includes(s)).length / lq.expect.length
     return { ...lq, hits, rank, recall5 }
   })
   const report = (): string =>
     rows
-      .filter((r) => r.rank !== 0 || r.recall5 < 1)
-      .map((r) => `  [${r.kind}] "${r.q}": first relevant at ${r.rank < 0 ? '>20' : r.rank + 1}, recall@5 ${r.recall5.toFixed(2)}; top: ${r.hits.slice(0, 5).join(', ')}`)
+      .filter(r => r.rank !== 0 || r.recall5 < 1)
+      .map(r => `  [${r.kind}] "${r.q}": first relevant at ${r.rank < 0 ? '>20' : r.rank + 1}, recall@5 ${r.recall5.toFixed(2)}; top: ${r.hits.slice(0, 5).join(', ')}`)
       .join('\n')
 
   it('has a labelled set of technician phrasings', () => {
     expect(QUERIES.length).toBeGreaterThanOrEqual(40)
     for (const lq of QUERIES) for (const s of lq.expect) expect(idOf.has(s), s).toBe(true)
-    for (const kind of ['typo', 'synonym', 'partial', 'contraction'] as const) expect(QUERIES.filter((q) => q.kind === kind).length).toBeGreaterThanOrEqual(4)
+    for (const kind of ['typo', 'synonym', 'partial', 'contraction'] as const) expect(QUERIES.filter(q => q.kind === kind).length).toBeGreaterThanOrEqual(4)
   })
 
   it('ranks the right procedure first: MRR ≥ 0.85, recall@5 ≥ 0.95', () => {
@@ -146,16 +146,16 @@ describe('search relevance on the demo library', () => {
     expect(UNPUBLISHED).toContain('vr240-runs-hot')
     const hidden = new Set([...RETIRED, ...UNPUBLISHED])
     // Their own words, to tempt the index, as well as every labelled query.
-    for (const q of ['pd250 stuck at full', 'PD-250', 'vr240 faceplate hot scorched', 'runs hot', ...QUERIES.map((x) => x.q)]) {
+    for (const q of ['pd250 stuck at full', 'PD-250', 'vr240 faceplate hot scorched', 'runs hot', ...QUERIES.map(x => x.q)]) {
       for (const h of index.search({ q, limit: 100 }).hits) expect(hidden.has(slugOf.get(h.id)!), `${q} → ${slugOf.get(h.id)}`).toBe(false)
     }
-    expect(index.search({ q: '', deviceType: 'push-dimmer-leading-edge', limit: 100 }).hits.map((h) => h.slug).sort()).toEqual(['pd400-buzzes-low', 'pd400-dead-after-lamp-failure', 'pd400-scorch-marks'])
+    expect(index.search({ q: '', deviceType: 'push-dimmer-leading-edge', limit: 100 }).hits.map(h => h.slug).sort()).toEqual(['pd400-buzzes-low', 'pd400-dead-after-lamp-failure', 'pd400-scorch-marks'])
   })
 })
 
 describe('toSearchDocument', () => {
   it('turns a revision into plain text, names from the vocabulary', () => {
-    const p = DEMO_PROCEDURES.find((x) => x.slug === 'vr240-stuck-at-full')!
+    const p = DEMO_PROCEDURES.find(x => x.slug === 'vr240-stuck-at-full')!
     const d = toSearchDocument(7, p.slug, published(p)!.content, vocabulary, '2025-06-01T00:00:00.000Z')
     expect(d).toMatchObject({ id: 7, slug: 'vr240-stuck-at-full', deviceType: { slug: 'rotary-led-dimmer-trailing-edge', name: '2-wire rotary LED dimmer (trailing edge)' }, publishedAt: '2025-06-01T00:00:00.000Z' })
     expect(d.symptoms).toEqual([{ slug: 'does-not-dim', name: 'Does not dim' }])

@@ -12,7 +12,7 @@ export async function up({ context: q }: { context: QueryInterface }) {
   })
   await q.addIndex('cause_counts', ['device_type', 'symptom'])
   await q.addIndex('repair_records', ['device_type', 'outcome', 'closed_at'], { name: 'repair_records_list' })
-  const closed = "r.status = 'closed' AND r.cause_key IS NOT NULL"
+  const closed = 'r.status = \'closed\' AND r.cause_key IS NOT NULL'
   await q.sequelize.query(`INSERT INTO cause_counts (device_type, cause_procedure_id, cause_key, symptom, n)
     SELECT r.device_type, r.cause_procedure_id, r.cause_key, '', COUNT(*) FROM repair_records r WHERE ${closed} GROUP BY 1, 2, 3
     UNION ALL

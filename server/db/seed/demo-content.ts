@@ -85,7 +85,7 @@ export const DEMO_SYMPTOMS: DemoSymptom[] = [
     slug: 'does-not-dim',
     name: 'Does not dim',
     description: 'The lamp comes on but stays at or near full brightness over the whole range of the control.',
-    synonyms: ["won't dim", 'stuck at full brightness', 'no dimming', 'full on only', 'stuck on full'],
+    synonyms: ['won\'t dim', 'stuck at full brightness', 'no dimming', 'full on only', 'stuck on full'],
   },
   {
     slug: 'flickers-one-half-cycle',
@@ -151,7 +151,7 @@ export const DEMO_SYMPTOMS: DemoSymptom[] = [
     slug: 'stays-on',
     name: 'Stays on / does not switch off',
     description: 'The load stays on after the time-out with nobody in the room.',
-    synonyms: ["won't switch off", 'stuck on', 'always on', 'no time-out', 'lights stay on'],
+    synonyms: ['won\'t switch off', 'stuck on', 'always on', 'no time-out', 'lights stay on'],
   },
   {
     slug: 'switches-on-by-itself',
@@ -163,7 +163,7 @@ export const DEMO_SYMPTOMS: DemoSymptom[] = [
     slug: 'no-motion-detect',
     name: 'Does not detect motion',
     description: 'Walking in front of the sensor does not switch the load on, or only from very close.',
-    synonyms: ['no detection', 'PIR not triggering', 'ignores movement', "won't switch on", 'short range'],
+    synonyms: ['no detection', 'PIR not triggering', 'ignores movement', 'won\'t switch on', 'short range'],
   },
   {
     slug: 'burning-smell',

@@ -15,5 +15,5 @@ export async function seedDemo(store: ObjectStore): Promise<Record<string, numbe
   const procedures = await seedProcedures(users as Record<DemoPerson, (typeof users)[string]>, store)
   const records = await seedRecords(users as Record<DemoPerson, (typeof users)[string]>)
   const captures = await seedCaptures(users.tomasz!, store)
-  return { users: Object.keys(users).length, 'new procedures': procedures, 'new repair records': records, 'new reference captures': captures }
+  return { 'users': Object.keys(users).length, 'new procedures': procedures, 'new repair records': records, 'new reference captures': captures }
 }

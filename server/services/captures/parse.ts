@@ -26,13 +26,13 @@ import { StringDecoder } from 'node:string_decoder'
 import { parse as csvParse } from 'csv-parse'
 import { initParser } from 'udsv'
 
-export type CaptureFormatErrorCode =
-  | 'EMPTY_FILE'
-  | 'NO_NUMERIC_COLUMNS'
-  | 'TIME_NOT_INCREASING'
-  | 'TOO_MANY_BAD_ROWS'
-  | 'TOO_MANY_SAMPLES'
-  | 'MALFORMED_CSV'
+export type CaptureFormatErrorCode
+  = | 'EMPTY_FILE'
+    | 'NO_NUMERIC_COLUMNS'
+    | 'TIME_NOT_INCREASING'
+    | 'TOO_MANY_BAD_ROWS'
+    | 'TOO_MANY_SAMPLES'
+    | 'MALFORMED_CSV'
 
 export class CaptureFormatError extends Error {
   readonly code: CaptureFormatErrorCode
@@ -434,8 +434,8 @@ class CaptureSink {
     if (currentCol === null) currentCol = pick(c => units[c] === null || unitIs(c, 'current'))
 
     const timeUnit = timeCol !== null ? units[timeCol] : null
-    const timeFromIndex =
-      timeCol === null || (meta.interval !== undefined && (timeUnit?.quantity === 'index' || (timeUnit === null && nameIs(timeCol, INDEX_NAME))))
+    const timeFromIndex
+      = timeCol === null || (meta.interval !== undefined && (timeUnit?.quantity === 'index' || (timeUnit === null && nameIs(timeCol, INDEX_NAME))))
     if (timeFromIndex && meta.interval === undefined) {
       throw new CaptureFormatError('NO_NUMERIC_COLUMNS', 'the first column counts samples but the file gives no sample interval to turn it into time')
     }

@@ -8,8 +8,8 @@
  */
 import type { SearchDocument, SearchVocabulary, SymptomVocabularyEntry } from './engine'
 
-export type LabelledQuery = { q: string; relevant: number[]; kind: 'exact' | 'typo' | 'prefix' | 'synonym' }
-export type SyntheticCorpus = { docs: SearchDocument[]; vocabulary: SearchVocabulary; queries: LabelledQuery[] }
+export type LabelledQuery = { q: string, relevant: number[], kind: 'exact' | 'typo' | 'prefix' | 'synonym' }
+export type SyntheticCorpus = { docs: SearchDocument[], vocabulary: SearchVocabulary, queries: LabelledQuery[] }
 
 /** mulberry32: small, fast, and the same sequence on every platform for a given seed. */
 function prng(seed: number): () => number {
@@ -57,12 +57,12 @@ const DEVICE_TYPES: Array<[string, string]> = [
 ]
 
 /** What the unit does; combined with a condition to give 24 × 5 = 120 symptoms. */
-const PHENOMENA: Array<{ slug: string; name: string; synonyms: [string, string] }> = [
+const PHENOMENA: Array<{ slug: string, name: string, synonyms: [string, string] }> = [
   { slug: 'flickers', name: 'Flickers', synonyms: ['strobes', 'blinks rapidly'] },
   { slug: 'buzzes', name: 'Buzzes', synonyms: ['hums loudly', 'buzzing noise'] },
   { slug: 'whines', name: 'Whines', synonyms: ['high-pitched squeal', 'coil whine'] },
   { slug: 'no-output', name: 'No output', synonyms: ['output dead', 'nothing on the output'] },
-  { slug: 'does-not-dim', name: 'Does not dim', synonyms: ["won't dim", 'stuck at full brightness'] },
+  { slug: 'does-not-dim', name: 'Does not dim', synonyms: ['won\'t dim', 'stuck at full brightness'] },
   { slug: 'trips-breaker', name: 'Trips the breaker', synonyms: ['trips the RCD', 'kicks the breaker out'] },
   { slug: 'overheats', name: 'Overheats', synonyms: ['runs very hot', 'too hot to touch'] },
   { slug: 'blows-fuse', name: 'Blows the fuse', synonyms: ['pops the fuse', 'fuse goes open'] },
@@ -77,14 +77,14 @@ const PHENOMENA: Array<{ slug: string; name: string; synonyms: [string, string] 
   { slug: 'uneven-dimming', name: 'Dims unevenly', synonyms: ['jumpy dimming', 'steps while dimming'] },
   { slug: 'loses-brightness', name: 'Loses brightness', synonyms: ['fades over time', 'goes dull'] },
   { slug: 'clicks', name: 'Clicks repeatedly', synonyms: ['ticking sound', 'relay chatter'] },
-  { slug: 'will-not-start', name: 'Will not turn on', synonyms: ["won't switch on", 'completely dead'] },
-  { slug: 'stays-on', name: 'Will not turn off', synonyms: ['stuck on', "won't switch off"] },
+  { slug: 'will-not-start', name: 'Will not turn on', synonyms: ['won\'t switch on', 'completely dead'] },
+  { slug: 'stays-on', name: 'Will not turn off', synonyms: ['stuck on', 'won\'t switch off'] },
   { slug: 'arcs', name: 'Arcs or sparks', synonyms: ['sparking inside', 'arcing noise'] },
   { slug: 'erratic', name: 'Responds erratically', synonyms: ['random behaviour', 'ignores the control'] },
-  { slug: 'not-charging', name: 'Does not charge', synonyms: ["won't charge", 'charging stops early'] },
+  { slug: 'not-charging', name: 'Does not charge', synonyms: ['won\'t charge', 'charging stops early'] },
 ]
 
-const CONDITIONS: Array<{ slug: string; name: string; synonyms: [string, string] }> = [
+const CONDITIONS: Array<{ slug: string, name: string, synonyms: [string, string] }> = [
   { slug: 'low-setting', name: 'at low setting', synonyms: ['when turned down', 'near minimum'] },
   { slug: 'full-load', name: 'at full load', synonyms: ['under heavy load', 'when fully loaded'] },
   { slug: 'cold-start', name: 'from cold', synonyms: ['on a cold start', 'first thing in the morning'] },
@@ -269,14 +269,14 @@ export function generateCorpus(n: number, seed: number): SyntheticCorpus {
   // Plant (symptom, device) pairs, each on one procedure only.
   const plantCount = Math.min(300, Math.floor(n / 4))
   const planted = new Map<string, number>() // "symptom|device" → doc index
-  const plantOf = new Map<number, { symptom: SymptomVocabularyEntry; device: { slug: string; name: string } }>()
+  const plantOf = new Map<number, { symptom: SymptomVocabularyEntry, device: { slug: string, name: string } }>()
   const plantIndices = sample(
     Array.from({ length: n }, (_, i) => i),
     plantCount,
   )
   for (const docIndex of plantIndices) {
     let symptom: SymptomVocabularyEntry
-    let device: { slug: string; name: string }
+    let device: { slug: string, name: string }
     do {
       symptom = pick(symptoms)
       device = pick(deviceTypes)
@@ -326,7 +326,7 @@ export function generateCorpus(n: number, seed: number): SyntheticCorpus {
       slug: `${device.slug}-${primary.slug}-${i + 1}`,
       title: pick(titleTemplates),
       deviceType: { ...device },
-      symptoms: chosen.map((s) => ({ slug: s.slug, name: s.name })),
+      symptoms: chosen.map(s => ({ slug: s.slug, name: s.name })),
       hazards: [...pick(hazardSets)],
       causes: causeNames.map((name, k) => ({ key: `c${k + 1}`, name })),
       stepTitles,
@@ -340,10 +340,10 @@ export function generateCorpus(n: number, seed: number): SyntheticCorpus {
   let k = 0
   for (const [key, docIndex] of planted) {
     const [symptomSlug, deviceSlug] = key.split('|') as [string, string]
-    const symptom = symptoms.find((s) => s.slug === symptomSlug)!
-    const device = deviceTypes.find((d) => d.slug === deviceSlug)!
+    const symptom = symptoms.find(s => s.slug === symptomSlug)!
+    const device = deviceTypes.find(d => d.slug === deviceSlug)!
     // By construction only the planted doc carries this pair; computed, not assumed.
-    const relevant = docs.filter((d) => d.deviceType.slug === deviceSlug && d.symptoms.some((s) => s.slug === symptomSlug)).map((d) => d.id)
+    const relevant = docs.filter(d => d.deviceType.slug === deviceSlug && d.symptoms.some(s => s.slug === symptomSlug)).map(d => d.id)
     if (relevant.length !== 1 || relevant[0] !== docIndex + 1) throw new Error(`corpus: planted pair ${key} is not unique`)
     const kind = kinds[k++ % kinds.length]!
     const symptomFirst = rnd() < 0.5
@@ -351,15 +351,18 @@ export function generateCorpus(n: number, seed: number): SyntheticCorpus {
     let q: string
     if (kind === 'exact') {
       q = join(symptom.name, device.name)
-    } else if (kind === 'synonym') {
+    }
+    else if (kind === 'synonym') {
       q = join(pick(symptom.synonyms), device.name)
-    } else if (kind === 'typo') {
+    }
+    else if (kind === 'typo') {
       // One slip in one word long enough for typo tolerance to apply (over 4 letters).
       const plain = join(symptom.name, device.name)
       const words = [...plain.matchAll(/[A-Za-z]{5,}/g)]
       const m = pick(words.length ? words : [...plain.matchAll(/[A-Za-z]{4,}/g)])
       q = plain.slice(0, m.index) + typo(m[0], rnd) + plain.slice(m.index + m[0].length)
-    } else {
+    }
+    else {
       const parts = join(symptom.name, device.name).split(' ')
       const last = parts[parts.length - 1]!
       parts[parts.length - 1] = last.length > 3 ? last.slice(0, int(3, last.length - 1)) : last

@@ -29,7 +29,7 @@ export function markdownToText(source: string): string {
     else if (token.type === 'fence' || token.type === 'code_block') blocks.push(token.content.trimEnd())
   }
   return blocks
-    .map((b) => b.trim())
+    .map(b => b.trim())
     .filter(Boolean)
     .join('\n')
 }
@@ -52,14 +52,14 @@ export function toSearchDocument(
   publishedAt?: string,
 ): SearchDocument {
   const c = RevisionContent.parse(content)
-  const device = vocabulary.deviceTypes.find((d) => d.slug === c.deviceType)
-  const symptomName = (s: string): string => vocabulary.symptoms.find((v) => v.slug === s)?.name ?? humanise(s)
+  const device = vocabulary.deviceTypes.find(d => d.slug === c.deviceType)
+  const symptomName = (s: string): string => vocabulary.symptoms.find(v => v.slug === s)?.name ?? humanise(s)
   const text = [
     markdownToText(c.summary),
     c.appliesTo.length ? `Applies to: ${c.appliesTo.join(', ')}.` : '',
-    ...c.causes.map((cause) => markdownToText(cause.detail)),
-    ...c.steps.map((step) => markdownToText(step.instruction)),
-    ...c.parts.map((p) => [p.name, p.partNumber, ...p.substitutes].filter(Boolean).join(', ')),
+    ...c.causes.map(cause => markdownToText(cause.detail)),
+    ...c.steps.map(step => markdownToText(step.instruction)),
+    ...c.parts.map(p => [p.name, p.partNumber, ...p.substitutes].filter(Boolean).join(', ')),
     markdownToText(c.fix),
     markdownToText(c.verification),
   ]
@@ -70,10 +70,10 @@ export function toSearchDocument(
     slug,
     title: c.title,
     deviceType: { slug: c.deviceType, name: device?.name ?? humanise(c.deviceType) },
-    symptoms: c.symptoms.map((s) => ({ slug: s, name: symptomName(s) })),
+    symptoms: c.symptoms.map(s => ({ slug: s, name: symptomName(s) })),
     hazards: [...c.hazards],
-    causes: c.causes.map((cause) => ({ key: cause.key, name: cause.name })),
-    stepTitles: c.steps.map((step) => step.title),
+    causes: c.causes.map(cause => ({ key: cause.key, name: cause.name })),
+    stepTitles: c.steps.map(step => step.title),
     text,
     ...(publishedAt !== undefined ? { publishedAt } : {}),
   }

@@ -43,10 +43,10 @@ export type SearchDocument = {
   id: number
   slug: string
   title: string
-  deviceType: { slug: string; name: string }
-  symptoms: Array<{ slug: string; name: string }>
+  deviceType: { slug: string, name: string }
+  symptoms: Array<{ slug: string, name: string }>
   hazards: string[]
-  causes: Array<{ key: string; name: string }>
+  causes: Array<{ key: string, name: string }>
   stepTitles: string[]
   /** Summary, cause details, instructions, fix and verification as plain text. */
   text: string
@@ -54,9 +54,9 @@ export type SearchDocument = {
   publishedAt?: string
 }
 
-export type SymptomVocabularyEntry = { slug: string; name: string; synonyms: string[] }
-export type DeviceTypeVocabularyEntry = { slug: string; name: string }
-export type SearchVocabulary = { symptoms: SymptomVocabularyEntry[]; deviceTypes: DeviceTypeVocabularyEntry[] }
+export type SymptomVocabularyEntry = { slug: string, name: string, synonyms: string[] }
+export type DeviceTypeVocabularyEntry = { slug: string, name: string }
+export type SearchVocabulary = { symptoms: SymptomVocabularyEntry[], deviceTypes: DeviceTypeVocabularyEntry[] }
 
 export type SearchRequest = {
   q?: string
@@ -71,10 +71,10 @@ export type SearchRequest = {
  * How often this procedure's causes were confirmed in repair records for the given symptoms.
  * `undefined` means no records. Supplied by the caller (the repair-record store).
  */
-export type EvidenceLookup = (docId: number, symptomSlugs: string[]) => { confirmed: number; total: number } | undefined
+export type EvidenceLookup = (docId: number, symptomSlugs: string[]) => { confirmed: number, total: number } | undefined
 
 /** A piece of plain text; `match` marks the words that matched. Render as text, never as HTML. */
-export type SnippetPart = { text: string; match: boolean }
+export type SnippetPart = { text: string, match: boolean }
 
 export type Highlight = {
   field: 'symptom' | 'title' | 'cause' | 'step' | 'text'
@@ -89,8 +89,8 @@ export type SearchHit = {
   id: number
   slug: string
   title: string
-  deviceType: { slug: string; name: string }
-  symptoms: Array<{ slug: string; name: string }>
+  deviceType: { slug: string, name: string }
+  symptoms: Array<{ slug: string, name: string }>
   /** Carried so a list can flag mains / stored-energy work before the procedure is opened. */
   hazards: string[]
   /** Final score: text relevance × evidence factor (0 for filter-only listings). */
@@ -98,14 +98,14 @@ export type SearchHit = {
   highlights: Highlight[]
 }
 
-export type FacetValue = { value: string; label: string; count: number }
+export type FacetValue = { value: string, label: string, count: number }
 
 export type SearchResponse = {
   hits: SearchHit[]
   total: number
-  facets: { deviceType: FacetValue[]; symptom: FacetValue[]; hazard: FacetValue[] }
+  facets: { deviceType: FacetValue[], symptom: FacetValue[], hazard: FacetValue[] }
   /** Closest symptom names/synonyms to the query ("did you mean"), best first. */
-  suggestions: Array<{ slug: string; name: string }>
+  suggestions: Array<{ slug: string, name: string }>
   /** Symptoms the query names (by vocabulary name or synonym), used for evidence weighting. */
   detectedSymptoms: string[]
   /**
@@ -121,9 +121,9 @@ export type SearchResponse = {
 
 const FIELDS = ['symptomKey', 'symptoms', 'synonyms', 'title', 'deviceType', 'causes', 'stepTitles', 'text'] as const
 type IndexField = (typeof FIELDS)[number]
-const WORD_FIELDS: IndexField[] = FIELDS.filter((f) => f !== 'symptomKey')
+const WORD_FIELDS: IndexField[] = FIELDS.filter(f => f !== 'symptomKey')
 /** Where a word of two or three letters still being typed is completed: not in body text. */
-const SHORT_PREFIX_FIELDS: IndexField[] = WORD_FIELDS.filter((f) => f !== 'text')
+const SHORT_PREFIX_FIELDS: IndexField[] = WORD_FIELDS.filter(f => f !== 'text')
 const SHORT_PREFIX_LENGTH = 4
 
 /** Symptom names and synonyms weigh most, then title, device type, causes, step titles, text. */
@@ -218,7 +218,8 @@ class TermIndex<T> extends MiniSearch<T> {
     if (own) this.beginBulk()
     try {
       for (const document of documents) this.add(document)
-    } finally {
+    }
+    finally {
       if (own) this.endBulk()
     }
   }
@@ -328,8 +329,8 @@ class TermIndex<T> extends MiniSearch<T> {
     if (!data) return fields
     const textDf = data.get(this._fieldIds.text!)?.size ?? 0
     if (textDf < UBIQUITOUS_SHARE * this._documentCount) return fields
-    const short = fields.filter((f) => f !== 'text')
-    return short.some((f) => (data.get(this._fieldIds[f]!)?.size ?? 0) > 0) ? short : null
+    const short = fields.filter(f => f !== 'text')
+    return short.some(f => (data.get(this._fieldIds[f]!)?.size ?? 0) > 0) ? short : null
   }
 
   private postings(data: FieldTermData, fields: readonly string[]): number {
@@ -379,7 +380,8 @@ class TermIndex<T> extends MiniSearch<T> {
     if (!node.prefix) {
       const data = this._index.get(node.term)
       if (data) offer(node.term, data, 1)
-    } else {
+    }
+    else {
       // A word being typed is heading for a word: part numbers and codes are typed with digits.
       const wordOnly = !/\d/.test(node.term)
       for (const [t, data] of this._index.atPrefix(node.term)) {
@@ -446,7 +448,8 @@ class TermIndex<T> extends MiniSearch<T> {
             const tf = freqs.get(doc)
             if (tf) out.add(doc, bm25(tf, doc), 1, true)
           }
-        } else if (freqs instanceof Postings) {
+        }
+        else if (freqs instanceof Postings) {
           // The same loop over the packed pairs (tf 0: deleted).
           const pairs = freqs.data
           const end = 2 * freqs.length
@@ -457,7 +460,8 @@ class TermIndex<T> extends MiniSearch<T> {
             if (candidates ? !candidates.has(doc) : !this._documentIds.has(doc)) continue
             out.add(doc, bm25(tf, doc), 1, true)
           }
-        } else {
+        }
+        else {
           for (const [doc, tf] of freqs) {
             // Postings of discarded documents linger until MiniSearch vacuums them.
             if (candidates ? !candidates.has(doc) : !this._documentIds.has(doc)) continue
@@ -537,10 +541,10 @@ export type IndexSnapshot = {
   averages: number[]
 }
 /** How bulk indexing reads a field (see `TermIndex.bulkReaders`). */
-type BulkFieldReader = { tokens: (text: string) => string[]; term: (token: string) => string | null; cap: number }
+type BulkFieldReader = { tokens: (text: string) => string[], term: (token: string) => string | null, cap: number }
 
 /** An indexed procedure: our own copy of it, its MiniSearch short id, its facet values as codes. */
-type DocRecord = { doc: SearchDocument; short: number; device: number; symptoms: number[]; hazards: number[] }
+type DocRecord = { doc: SearchDocument, short: number, device: number, symptoms: number[], hazards: number[] }
 
 type IndexState = {
   mini: TermIndex<SearchDocument>
@@ -556,19 +560,19 @@ type IndexState = {
   newestFirst: DocRecord[] | null
 }
 
-type Alternative = { term: string; prefix: boolean; weight: number; fields?: readonly string[] }
+type Alternative = { term: string, prefix: boolean, weight: number, fields?: readonly string[] }
 /**
  * One query term position and what it may match. `candidates`: the terms it may stand for
  * when spelling a symptom name; `insignificant`: too common to search for.
  */
-type Slot = { term: string; word: string; prefix: boolean; alternatives: Alternative[]; candidates: Set<string>; insignificant: boolean }
-type SymptomSpan = { start: number; end: number; slugs: string[] }
-type Phrase = { terms: string[]; slug: string }
-type Candidate = { rec: DocRecord; score: number }
+type Slot = { term: string, word: string, prefix: boolean, alternatives: Alternative[], candidates: Set<string>, insignificant: boolean }
+type SymptomSpan = { start: number, end: number, slugs: string[] }
+type Phrase = { terms: string[], slug: string }
+type Candidate = { rec: DocRecord, score: number }
 /** A query tree over single index terms: what a group of the plan must match. */
-type TermNode = { kind: 'term'; term: string; prefix: boolean; weight: number; fields: readonly string[]; derived?: DerivedTerm[] }
-type MatchNode = TermNode | { kind: 'and' | 'or'; children: MatchNode[] }
-type DerivedTerm = { term: string; data: FieldTermData; weight: number; fields: readonly string[]; postings: number }
+type TermNode = { kind: 'term', term: string, prefix: boolean, weight: number, fields: readonly string[], derived?: DerivedTerm[] }
+type MatchNode = TermNode | { kind: 'and' | 'or', children: MatchNode[] }
+type DerivedTerm = { term: string, data: FieldTermData, weight: number, fields: readonly string[], postings: number }
 /**
  * Sums per document, dense over MiniSearch's short ids; `docs` lists the documents present.
  * A stamp marks presence, so reuse needs no clearing.
@@ -609,7 +613,8 @@ class DocScores {
       this.sources[doc] = sources
       this.groups[doc] = 0
       this.docs.push(doc)
-    } else {
+    }
+    else {
       this.score[doc] = this.score[doc]! + score
       if (!once) this.sources[doc] = this.sources[doc]! + sources
     }
@@ -622,11 +627,11 @@ class DocScores {
     this.docs.length = w
   }
 }
-type Group = { node: MatchNode; cost: number }
+type Group = { node: MatchNode, cost: number }
 /** `sources`: query terms matched (MiniSearch's "quality" factor). */
-type Accumulated = { raw: number; sources: number; groups: number }
-type PendingOp = { kind: 'upsert'; doc: SearchDocument } | { kind: 'discard'; id: number } | { kind: 'vocabulary'; slugs: string[] }
-type SuggestionEntry = { id: number; slug: string; phrase: string }
+type Accumulated = { raw: number, sources: number, groups: number }
+type PendingOp = { kind: 'upsert', doc: SearchDocument } | { kind: 'discard', id: number } | { kind: 'vocabulary', slugs: string[] }
+type SuggestionEntry = { id: number, slug: string, phrase: string }
 type FacetKind = 'device' | 'symptom' | 'hazard'
 
 function clampInt(value: unknown, min: number, max: number, fallback: number): number {
@@ -666,7 +671,7 @@ function rawTokens(text: string): string[] {
 }
 
 function yieldToEventLoop(): Promise<void> {
-  return new Promise((resolve) => setTimeout(resolve, 0))
+  return new Promise(resolve => setTimeout(resolve, 0))
 }
 
 /** A private copy, symptoms and hazards de-duplicated (the text string itself is shared). */
@@ -677,9 +682,9 @@ function ownCopy(doc: SearchDocument): SearchDocument {
     slug: doc.slug,
     title: doc.title,
     deviceType: { slug: doc.deviceType.slug, name: doc.deviceType.name },
-    symptoms: doc.symptoms.filter((s) => !seen.has(s.slug) && seen.add(s.slug)).map((s) => ({ slug: s.slug, name: s.name })),
+    symptoms: doc.symptoms.filter(s => !seen.has(s.slug) && seen.add(s.slug)).map(s => ({ slug: s.slug, name: s.name })),
     hazards: [...new Set(doc.hazards)],
-    causes: doc.causes.map((c) => ({ key: c.key, name: c.name })),
+    causes: doc.causes.map(c => ({ key: c.key, name: c.name })),
     stepTitles: [...doc.stepTitles],
     text: doc.text,
     ...(doc.publishedAt !== undefined ? { publishedAt: doc.publishedAt } : {}),
@@ -807,7 +812,7 @@ export class ProcedureSearchIndex {
    * symptom whose name or synonyms changed is re-indexed (only those documents, via `replace`);
    * device-type names only label facets and need no re-index.
    */
-  setVocabulary(vocabulary: SearchVocabulary): { changedSymptoms: string[]; reindexed: number } {
+  setVocabulary(vocabulary: SearchVocabulary): { changedSymptoms: string[], reindexed: number } {
     const next = new Map<string, SymptomVocabularyEntry>()
     for (const s of vocabulary.symptoms) next.set(s.slug, { slug: s.slug, name: s.name, synonyms: [...s.synonyms] })
     const changed: string[] = []
@@ -818,7 +823,7 @@ export class ProcedureSearchIndex {
     for (const slug of this.symptomVocabulary.keys()) if (!next.has(slug)) changed.push(slug)
 
     this.symptomVocabulary = next
-    this.deviceTypeVocabulary = new Map(vocabulary.deviceTypes.map((d) => [d.slug, { slug: d.slug, name: d.name }]))
+    this.deviceTypeVocabulary = new Map(vocabulary.deviceTypes.map(d => [d.slug, { slug: d.slug, name: d.name }]))
     this.rebuildPhrases()
     const reindexed = this.reindexSymptoms(this.state, changed)
     this.pendingOps?.push({ kind: 'vocabulary', slugs: changed })
@@ -863,8 +868,9 @@ export class ProcedureSearchIndex {
       }
       mode = 'browse'
       state.newestFirst ??= [...state.docs.values()].sort(newestFirst)
-      candidates = state.newestFirst.map((rec) => ({ rec, score: 0 }))
-    } else {
+      candidates = state.newestFirst.map(rec => ({ rec, score: 0 }))
+    }
+    else {
       const matched = this.matchText(state, parsed)
       candidates = matched.results
       plan = matched.plan
@@ -903,9 +909,9 @@ export class ProcedureSearchIndex {
       return out.sort(byCountThenLabel)
     }
     const facets = {
-      deviceType: facet('device', deviceCounts, (v) => this.deviceTypeVocabulary.get(v)?.name ?? state.deviceTypeNames.get(v) ?? v),
-      symptom: facet('symptom', symptomCounts, (v) => this.symptomVocabulary.get(v)?.name ?? state.symptomNames.get(v) ?? v),
-      hazard: facet('hazard', hazardCounts, (v) => HAZARD_LABELS[v] ?? v),
+      deviceType: facet('device', deviceCounts, v => this.deviceTypeVocabulary.get(v)?.name ?? state.deviceTypeNames.get(v) ?? v),
+      symptom: facet('symptom', symptomCounts, v => this.symptomVocabulary.get(v)?.name ?? state.symptomNames.get(v) ?? v),
+      hazard: facet('hazard', hazardCounts, v => HAZARD_LABELS[v] ?? v),
     }
 
     // Only what can reach the page is put in order (browse lists are in order already).
@@ -927,7 +933,7 @@ export class ProcedureSearchIndex {
         slug: doc.slug,
         title: doc.title,
         deviceType: { slug: doc.deviceType.slug, name: doc.deviceType.name },
-        symptoms: doc.symptoms.map((s) => ({ slug: s.slug, name: this.symptomVocabulary.get(s.slug)?.name ?? s.name })),
+        symptoms: doc.symptoms.map(s => ({ slug: s.slug, name: this.symptomVocabulary.get(s.slug)?.name ?? s.name })),
         hazards: [...doc.hazards],
         score: c.score,
         highlights: plan.length ? this.highlightsFor(doc, state.mini.matchInfo(plan, doc.id)) : [],
@@ -954,21 +960,21 @@ export class ProcedureSearchIndex {
       extractField: (doc, field) => this.extractField(doc, field),
       // Terms are made here rather than in processTerm so repeats in long text can be capped.
       tokenize: (text, field) => (field === 'symptomKey' ? text.split(' ').filter(Boolean) : this.indexTerms(text, field === 'text')),
-      processTerm: (term) => term,
+      processTerm: term => term,
       searchOptions: {
         // Queries arrive as single, already-processed terms (see `toQuery`).
-        tokenize: (term) => [term],
-        processTerm: (term) => term,
+        tokenize: term => [term],
+        processTerm: term => term,
         boost: { ...FIELD_BOOSTS },
         bm25: { ...BM25 },
         weights: { fuzzy: 0.45, prefix: PREFIX_WEIGHT },
       },
     })
-    const words: BulkFieldReader = { tokens: rawTokens, term: (token) => this.indexTerm(token), cap: Infinity }
+    const words: BulkFieldReader = { tokens: rawTokens, term: token => this.indexTerm(token), cap: Infinity }
     mini.bulkReaders = {
-      ...Object.fromEntries(WORD_FIELDS.map((f) => [f, words])),
+      ...Object.fromEntries(WORD_FIELDS.map(f => [f, words])),
       text: { ...words, cap: MAX_TEXT_TERM_FREQUENCY },
-      symptomKey: { tokens: (text) => text.split(' ').filter(Boolean), term: (slug) => slug, cap: Infinity },
+      symptomKey: { tokens: text => text.split(' ').filter(Boolean), term: slug => slug, cap: Infinity },
     }
     return { mini, docs: new Map(), records: [], bySymptom: new Map(), symptomNames: new Map(), deviceTypeNames: new Map(), newestFirst: null }
   }
@@ -978,7 +984,7 @@ export class ProcedureSearchIndex {
       case 'id':
         return doc.id
       case 'symptomKey':
-        return doc.symptoms.map((s) => s.slug).join(' ')
+        return doc.symptoms.map(s => s.slug).join(' ')
       case 'symptoms':
         return doc.symptoms
           .flatMap((s) => {
@@ -987,13 +993,13 @@ export class ProcedureSearchIndex {
           })
           .join('\n')
       case 'synonyms':
-        return doc.symptoms.flatMap((s) => this.symptomVocabulary.get(s.slug)?.synonyms ?? []).join('\n')
+        return doc.symptoms.flatMap(s => this.symptomVocabulary.get(s.slug)?.synonyms ?? []).join('\n')
       case 'title':
         return doc.title
       case 'deviceType':
         return doc.deviceType.name
       case 'causes':
-        return doc.causes.map((c) => c.name).join('\n')
+        return doc.causes.map(c => c.name).join('\n')
       case 'stepTitles':
         return doc.stepTitles.join('\n')
       case 'text':
@@ -1056,8 +1062,8 @@ export class ProcedureSearchIndex {
       doc,
       short,
       device: this.code('device', doc.deviceType.slug),
-      symptoms: doc.symptoms.map((s) => this.code('symptom', s.slug)),
-      hazards: doc.hazards.map((h) => this.code('hazard', h)),
+      symptoms: doc.symptoms.map(s => this.code('symptom', s.slug)),
+      hazards: doc.hazards.map(h => this.code('hazard', h)),
     }
     state.docs.set(doc.id, rec)
     state.records[short] = rec
@@ -1085,7 +1091,8 @@ export class ProcedureSearchIndex {
     if (state.mini.has(doc.id)) {
       this.unregister(state, doc.id)
       state.mini.replace(doc)
-    } else {
+    }
+    else {
       state.mini.add(doc)
     }
     this.register(state, doc)
@@ -1118,7 +1125,7 @@ export class ProcedureSearchIndex {
       for (const phrase of [s.name, ...s.synonyms]) {
         entries.push({ id: entries.length, slug: s.slug, phrase })
         const terms = tokenizeWords(phrase)
-          .map((t) => toIndexTerm(t))
+          .map(t => toIndexTerm(t))
           .filter((t): t is string => t !== null)
         if (terms.length === 0) continue
         const p = { terms, slug: s.slug }
@@ -1137,7 +1144,7 @@ export class ProcedureSearchIndex {
     const index = new MiniSearch<SuggestionEntry>({
       fields: ['phrase'],
       storeFields: ['slug'],
-      tokenize: (text) => tokenizeWords(text),
+      tokenize: text => tokenizeWords(text),
       // Both the stem and the word itself, so a typo is measured against what was written.
       processTerm: (token) => {
         const term = toIndexTerm(token)
@@ -1145,7 +1152,7 @@ export class ProcedureSearchIndex {
         const word = normaliseWord(token)
         return word !== term && term !== NEGATION_TERM ? [term, word] : term
       },
-      searchOptions: { tokenize: (term) => [term], processTerm: (term) => term },
+      searchOptions: { tokenize: term => [term], processTerm: term => term },
     })
     index.addAll(entries)
     return index
@@ -1196,7 +1203,8 @@ export class ProcedureSearchIndex {
           if (!prefixHits && mini.hasTermWithPrefix(stem)) alternatives.push({ term: stem, prefix: true, weight: base })
           else if (prefixHits && mini.hasTerm(stem)) alternatives.push({ term: stem, prefix: false, weight: base })
         }
-      } else if (known) {
+      }
+      else if (known) {
         alternatives.push({ term, prefix: false, weight: base })
       }
       if ((!known || correctKnownTerms) && !(isPrefix && alternatives.length > 0)) {
@@ -1214,7 +1222,7 @@ export class ProcedureSearchIndex {
       const insignificant = alternatives.length > 0 && resolved.length === 0
       slots.push({ term, word, prefix: isPrefix, alternatives: insignificant ? [] : resolved, candidates, insignificant })
     })
-    if (slots.length > 0 && slots.every((s) => s.insignificant)) {
+    if (slots.length > 0 && slots.every(s => s.insignificant)) {
       for (const s of slots) {
         s.insignificant = false
         s.alternatives = [{ term: s.term, prefix: s.prefix, weight: s.term === NEGATION_TERM ? NEGATION_WEIGHT : 1, fields: WORD_FIELDS }]
@@ -1257,12 +1265,12 @@ export class ProcedureSearchIndex {
 
   private slotNode(slot: Slot): MatchNode | null {
     if (slot.alternatives.length === 0) return null
-    const nodes: MatchNode[] = slot.alternatives.map((a) => ({ kind: 'term', term: a.term, prefix: a.prefix, weight: a.weight, fields: a.fields ?? WORD_FIELDS }))
+    const nodes: MatchNode[] = slot.alternatives.map(a => ({ kind: 'term', term: a.term, prefix: a.prefix, weight: a.weight, fields: a.fields ?? WORD_FIELDS }))
     return nodes.length === 1 ? nodes[0]! : { kind: 'or', children: nodes }
   }
 
   private symptomKeyNode(slugs: string[]): MatchNode {
-    const nodes: MatchNode[] = slugs.map((slug) => ({ kind: 'term', term: slug, prefix: false, weight: 1, fields: ['symptomKey'] }))
+    const nodes: MatchNode[] = slugs.map(slug => ({ kind: 'term', term: slug, prefix: false, weight: 1, fields: ['symptomKey'] }))
     return nodes.length === 1 ? nodes[0]! : { kind: 'or', children: nodes }
   }
 
@@ -1294,11 +1302,12 @@ export class ProcedureSearchIndex {
             if (node) add(node)
           }
           add(key)
-        } else {
+        }
+        else {
           // A word the run repeats ("low … at low setting") counts once, as in MiniSearch.
-          const distinct = spanSlots.filter((slot, k) => !slot.insignificant && spanSlots.findIndex((o) => o.term === slot.term && o.prefix === slot.prefix) === k)
-          const inner = distinct.map((slot) => this.slotNode(slot))
-          const words: MatchNode | null = inner.length > 0 && inner.every((n) => n !== null) ? { kind: 'and', children: inner as MatchNode[] } : null
+          const distinct = spanSlots.filter((slot, k) => !slot.insignificant && spanSlots.findIndex(o => o.term === slot.term && o.prefix === slot.prefix) === k)
+          const inner = distinct.map(slot => this.slotNode(slot))
+          const words: MatchNode | null = inner.length > 0 && inner.every(n => n !== null) ? { kind: 'and', children: inner as MatchNode[] } : null
           add(words ? { kind: 'or', children: [words, key] } : key)
         }
         i = span.end
@@ -1349,7 +1358,7 @@ export class ProcedureSearchIndex {
       if (g >= seeds - 1) {
         // A dropped document leaves `docs` but stays marked: it may still be scored through
         // a posting list, harmlessly, as only `docs` is read out.
-        acc.keep((doc) => acc.groups[doc]! + remaining >= minMatch)
+        acc.keep(doc => acc.groups[doc]! + remaining >= minMatch)
       }
       if (acc.docs.length === 0) break
     }
@@ -1383,13 +1392,13 @@ export class ProcedureSearchIndex {
     return out
   }
 
-  private matchText(state: IndexState, parsed: ParsedQuery): { results: Candidate[]; plan: MatchNode[]; mode: 'all' | 'partial'; detectedSymptoms: string[] } {
+  private matchText(state: IndexState, parsed: ParsedQuery): { results: Candidate[], plan: MatchNode[], mode: 'all' | 'partial', detectedSymptoms: string[] } {
     const mini = state.mini
     // Every group evaluated, for highlighting: a document's matched terms are looked up in it.
     const plan: MatchNode[] = []
     const run = (groups: Group[] | null, minMatch: (n: number) => number): Candidate[] => {
       if (!groups || groups.length === 0) return []
-      plan.push(...groups.map((g) => g.node))
+      plan.push(...groups.map(g => g.node))
       return this.evaluate(state, groups, minMatch(groups.length))
     }
     const everyGroup = (n: number): number => n
@@ -1399,7 +1408,7 @@ export class ProcedureSearchIndex {
     let mode: 'all' | 'partial' = 'all'
     if (results.length < THIN_RESULT) {
       // A typo can be a real word ("sitting" for "setting"): try corrections for every long term.
-      if (slots.some((s) => maxEdits(s.word) > 0 && s.alternatives.some((a) => a.term === s.term))) {
+      if (slots.some(s => maxEdits(s.word) > 0 && s.alternatives.some(a => a.term === s.term))) {
         slots = this.resolveSlots(mini, parsed, true)
         spans = this.detectSymptomSpans(slots)
         const more = run(this.planGroups(mini, slots, spans, 'all'), everyGroup)
@@ -1420,10 +1429,9 @@ export class ProcedureSearchIndex {
         }
       }
     }
-    const detectedSymptoms = [...new Set(spans.flatMap((s) => s.slugs))].sort()
+    const detectedSymptoms = [...new Set(spans.flatMap(s => s.slugs))].sort()
     return { results, plan, mode, detectedSymptoms }
   }
-
 
   // -------------------------------------------------------------------------------------------
   // Ranking, highlights, suggestions
@@ -1438,7 +1446,7 @@ export class ProcedureSearchIndex {
       return { c: { rec: c.rec, score: c.score * (1 + EVIDENCE_WEIGHT * rate) }, text: c.score }
     })
     weighed.sort((a, b) => b.c.score - a.c.score || b.text - a.text || a.c.rec.doc.id - b.c.rec.doc.id)
-    return weighed.map((w) => w.c)
+    return weighed.map(w => w.c)
   }
 
   /** Highlight patterns by matched-term set: the hits of one search mostly share theirs. */
@@ -1490,7 +1498,7 @@ export class ProcedureSearchIndex {
     // character's lowercase is longer, as with "İ"; then fold instead).
     const lower = text.toLowerCase()
     const folded = lower.length === text.length
-    const found: Array<{ start: number; end: number; term: string }> = []
+    const found: Array<{ start: number, end: number, term: string }> = []
     if (folded) {
       // The words that begin with a matched stem, found with indexOf: the same words the
       // pattern finds (`buildHighlightPattern`), several times faster on long text.
@@ -1500,7 +1508,8 @@ export class ProcedureSearchIndex {
         found.push({ start, end, term })
         if (found.length === MAX_TEXT_MATCHES) break
       }
-    } else {
+    }
+    else {
       const pattern = this.highlightPattern(matched, true)
       if (!pattern) return null
       for (const m of text.matchAll(pattern)) {
@@ -1564,13 +1573,13 @@ export class ProcedureSearchIndex {
         steps++
       }
     }
-    const inText = new Set(Object.keys(match).filter((term) => match[term]!.includes('text')))
+    const inText = new Set(Object.keys(match).filter(term => match[term]!.includes('text')))
     const w = this.textWindow(doc.text, inText)
     if (w) out.push(w)
     return out.slice(0, MAX_HIGHLIGHTS)
   }
 
-  private suggest(parsed: ParsedQuery): Array<{ slug: string; name: string }> {
+  private suggest(parsed: ParsedQuery): Array<{ slug: string, name: string }> {
     if (this.symptomVocabulary.size === 0) return []
     const queries: Query[] = []
     parsed.terms.forEach((term, i) => {
@@ -1582,7 +1591,7 @@ export class ProcedureSearchIndex {
       if (word !== term && term !== NEGATION_TERM) queries.push({ queries: [word], prefix, fuzzy: edits(word) })
     })
     const seen = new Set<string>()
-    const out: Array<{ slug: string; name: string }> = []
+    const out: Array<{ slug: string, name: string }> = []
     for (const r of this.suggestionIndex.search({ combineWith: 'OR', queries })) {
       const slug = r.slug as string
       if (seen.has(slug)) continue
@@ -1603,9 +1612,9 @@ export class ProcedureSearchIndex {
  */
 function topCandidates(candidates: Candidate[], pageEnd: number, slack: number): Candidate[] {
   if (candidates.length > 2 * pageEnd) {
-    const scores = Float64Array.from(candidates, (c) => c.score).sort()
+    const scores = Float64Array.from(candidates, c => c.score).sort()
     const cut = scores[scores.length - pageEnd]! / slack
-    candidates = candidates.filter((c) => c.score >= cut)
+    candidates = candidates.filter(c => c.score >= cut)
   }
   return candidates.sort(byScore)
 }
@@ -1645,10 +1654,11 @@ function wordEndFrom(text: string, at: number): number {
   while (i < text.length && isWordCharAt(text, i)) i++
   for (;;) {
     const c = text[i]
-    if ((c === "'" || c === '’' || c === 'ʼ') && i + 1 < text.length && isWordCharAt(text, i + 1)) {
+    if ((c === '\'' || c === '’' || c === 'ʼ') && i + 1 < text.length && isWordCharAt(text, i + 1)) {
       i++
       while (i < text.length && isWordCharAt(text, i)) i++
-    } else return i
+    }
+    else return i
   }
 }
 

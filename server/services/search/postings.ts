@@ -97,9 +97,11 @@ export class Postings implements Map<number, number> {
     if (at < this.used && this.pairs[2 * at] === key) {
       if (this.pairs[2 * at + 1] === 0) this.live++
       this.pairs[2 * at + 1] = value
-    } else if (at === this.used) {
+    }
+    else if (at === this.used) {
       this.append(key, value)
-    } else {
+    }
+    else {
       // A new id below the highest: never from the index (ids only grow), kept correct anyway.
       this.makeRoom()
       const pos = this.lowerBound(key)
@@ -133,7 +135,7 @@ export class Postings implements Map<number, number> {
     for (const [key, value] of this) callback.call(thisArg, value, key, this)
   }
 
-  *entries(): MapIterator<[number, number]> {
+  * entries(): MapIterator<[number, number]> {
     // Position and last id yielded: if pairs move meanwhile, resume after that id.
     let i = 0
     let epoch = this.epoch
@@ -152,11 +154,11 @@ export class Postings implements Map<number, number> {
     }
   }
 
-  *keys(): MapIterator<number> {
+  * keys(): MapIterator<number> {
     for (const [key] of this.entries()) yield key
   }
 
-  *values(): MapIterator<number> {
+  * values(): MapIterator<number> {
     for (const [, value] of this.entries()) yield value
   }
 

@@ -23,7 +23,7 @@ export const NEGATION_TERM = 'not'
 
 /** A run of letters/digits, optionally joined by apostrophes (won't, driver's). */
 const WORD_PATTERN = /[\p{L}\p{N}]+(?:['’ʼ][\p{L}\p{N}]+)*/gu
-const NON_ASCII = /[^\x00-\x7f]/
+const NON_ASCII = /[^\u0000-\u007F]/ // eslint-disable-line no-control-regex -- the ASCII range, not a control character
 const APOSTROPHES = /[’‘ʼ`´′]/g
 const COMBINING_MARKS = /\p{M}+/gu
 const DIGIT = /\d/
@@ -37,11 +37,11 @@ const VOWEL = /[aeiouy]/
  */
 const STOP_WORDS = new Set(
   (
-    'a an the and or but if then else when whenever while at by for with about against between into through during before after ' +
-    'to from in of as until because so than too very just only also again further once here there all any both each few more most ' +
-    'other some such own same s t can will would could should shall may might must i me my we our us you your he him his she her ' +
-    'it its they them their what which who whom whose this that these those am is are was were be been being have has had having ' +
-    'do does did doing get gets got getting keep keeps kept please help how why where really still even like'
+    'a an the and or but if then else when whenever while at by for with about against between into through during before after '
+    + 'to from in of as until because so than too very just only also again further once here there all any both each few more most '
+    + 'other some such own same s t can will would could should shall may might must i me my we our us you your he him his she her '
+    + 'it its they them their what which who whom whose this that these those am is are was were be been being have has had having '
+    + 'do does did doing get gets got getting keep keeps kept please help how why where really still even like'
   ).split(' '),
 )
 
@@ -92,7 +92,10 @@ export function joinedCodes(text: string): string[] {
   }
   const code = (at: number): number => (at >= 0 && at < text.length ? text.charCodeAt(at) : -1)
   const letter = (at: number): boolean => isLetter(code(at), text, at)
-  const alnum = (at: number): boolean => { const c = code(at); return c >= 0 && (isLetter(c, text, at) || isDigit(c, text, at)) }
+  const alnum = (at: number): boolean => {
+    const c = code(at)
+    return c >= 0 && (isLetter(c, text, at) || isDigit(c, text, at))
+  }
   let lastEnd = 0
   for (const m of text.matchAll(HYPHEN)) {
     const i = m.index
@@ -108,9 +111,11 @@ export function joinedCodes(text: string): string[] {
     if (j < text.length && isDigit(code(j), text, j)) {
       end = j + 1
       while (alnum(end)) end++
-    } else if (letter(j) && !alnum(j + 1)) {
+    }
+    else if (letter(j) && !alnum(j + 1)) {
       end = j + 1
-    } else continue
+    }
+    else continue
     out.push(text.slice(a, i) + text.slice(j, end))
     lastEnd = end
   }
@@ -118,8 +123,8 @@ export function joinedCodes(text: string): string[] {
 }
 
 /** Word tokens with their positions in the original text (for highlighting). */
-export function wordSpans(text: string): Array<{ word: string; start: number; end: number }> {
-  const spans: Array<{ word: string; start: number; end: number }> = []
+export function wordSpans(text: string): Array<{ word: string, start: number, end: number }> {
+  const spans: Array<{ word: string, start: number, end: number }> = []
   for (const m of text.matchAll(WORD_PATTERN)) spans.push({ word: m[0], start: m.index, end: m.index + m[0].length })
   return spans
 }
@@ -127,7 +132,7 @@ export function wordSpans(text: string): Array<{ word: string; start: number; en
 /** Lowercase, accents removed (NFKD also folds full-width and ligature forms), one apostrophe. */
 export function normaliseWord(token: string): string {
   let w = token.toLowerCase()
-  if (NON_ASCII.test(w)) w = w.normalize('NFKD').replace(COMBINING_MARKS, '').replace(APOSTROPHES, "'")
+  if (NON_ASCII.test(w)) w = w.normalize('NFKD').replace(COMBINING_MARKS, '').replace(APOSTROPHES, '\'')
   return w
 }
 
@@ -159,7 +164,8 @@ export function stemWord(word: string): string {
   if (s.endsWith('ing')) {
     const base = s.slice(0, -3)
     if (base.length >= 3 && VOWEL.test(base)) s = undouble(base)
-  } else if (s.endsWith('ed') && !s.endsWith('eed')) {
+  }
+  else if (s.endsWith('ed') && !s.endsWith('eed')) {
     const base = s.slice(0, -2)
     if (base.length >= 3 && VOWEL.test(base)) s = undouble(base)
   }
@@ -169,8 +175,8 @@ export function stemWord(word: string): string {
 
 /** Classifies a normalised word: a negation, a stop word, or a content word with its stem. */
 function termOfWord(w: string): string | null {
-  if (w.includes("'")) {
-    if (w.endsWith("n't")) return NEGATION_TERM
+  if (w.includes('\'')) {
+    if (w.endsWith('n\'t')) return NEGATION_TERM
     w = CLITIC.test(w) ? w.replace(CLITIC, '') : w.replace(/'/g, '')
   }
   if (NEGATIONS.has(w)) return NEGATION_TERM
@@ -229,7 +235,7 @@ export function parseQuery(q: unknown): ParsedQuery {
   if (typeof q !== 'string' || q.length === 0) return { terms: [], words: [], lastTermIsPrefix: false, truncated: false }
   let truncated = q.length > QUERY_LIMITS.scanChars
   let s = q.slice(0, QUERY_LIMITS.scanChars)
-  s = s.replace(FORMAT, '').replace(CONTROL, ' ').toLowerCase().normalize('NFKD').replace(COMBINING_MARKS, '').replace(APOSTROPHES, "'")
+  s = s.replace(FORMAT, '').replace(CONTROL, ' ').toLowerCase().normalize('NFKD').replace(COMBINING_MARKS, '').replace(APOSTROPHES, '\'')
   if (s.length > QUERY_LIMITS.maxChars) {
     truncated = true
     // Cut at a separator: a word sliced in half by the limit is not a word the user typed.

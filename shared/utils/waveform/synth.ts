@@ -130,10 +130,18 @@ export function synthesiseCapture(options: SynthOptions = {}): Capture {
   let positive: SynthEdge | 'full' | 'off'
   let negative: SynthEdge | 'full' | 'off'
   switch (cut) {
-    case 'none': positive = negative = 'full'; break
-    case 'leading_edge': positive = negative = 'leading_edge'; break
-    case 'trailing_edge': positive = negative = 'trailing_edge'; break
-    case 'dead': positive = negative = 'off'; break
+    case 'none':
+      positive = negative = 'full'
+      break
+    case 'leading_edge':
+      positive = negative = 'leading_edge'
+      break
+    case 'trailing_edge':
+      positive = negative = 'trailing_edge'
+      break
+    case 'dead':
+      positive = negative = 'off'
+      break
     case 'half_missing': {
       const present = options.edge !== undefined ? edge : 'full'
       positive = faultPositive ? 'off' : present
@@ -207,7 +215,7 @@ export interface CsvOptions {
   lineEnding?: '\n' | '\r\n'
 }
 
-const TIME_SCALE: Record<CsvTimeUnit, number> = { s: 1, ms: 1e3, us: 1e6, 'µs': 1e6 }
+const TIME_SCALE: Record<CsvTimeUnit, number> = { s: 1, ms: 1e3, us: 1e6, µs: 1e6 }
 const VOLTAGE_SCALE: Record<CsvVoltageUnit, number> = { V: 1, mV: 1e3, kV: 1e-3 }
 const CURRENT_SCALE: Record<CsvCurrentUnit, number> = { A: 1, mA: 1e3 }
 
