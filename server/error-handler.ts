@@ -1,5 +1,6 @@
 import type { NitroErrorHandler } from 'nitropack/types'
 import { getRequestURL, send, setResponseHeader, setResponseStatus } from 'h3'
+import { HTTP_STATUS, isDomainError, type DomainError } from './services/errors'
 
 const DB_DOWN = /Sequelize(Connection|ConnectionRefused|ConnectionAcquireTimeout|HostNotReachable|ConnectionTimedOut|AccessDenied)Error|ER_GET_CONNECTION_TIMEOUT|ER_CONNECTION_TIMEOUT|ER_SOCKET_UNEXPECTED_CLOSE|ER_CONNECTION_ALREADY_CLOSED/i
 
@@ -14,6 +15,16 @@ function unavailableCause(error: unknown): string | null {
   return null
 }
 
+/** A domain error thrown by a service reaches here wrapped by h3 as its `cause`. */
+function domainErrorOf(error: unknown): DomainError | null {
+  let e: unknown = error
+  for (let depth = 0; e && depth < 3; depth++) {
+    if (isDomainError(e)) return e
+    e = (e as { cause?: unknown }).cause
+  }
+  return null
+}
+
 /**
  * API errors are JSON `{ statusCode, statusMessage, message, data }`. An unreachable dependency
  * is a 503 that names it; an unexpected error is a 500 without internals. Pages fall through to
@@ -23,10 +34,14 @@ const handler: NitroErrorHandler = async (error, event) => {
   const url = getRequestURL(event)
   if (!url.pathname.startsWith('/api/') && url.pathname !== '/api') return
   const down = unavailableCause(error)
-  let statusCode = error.statusCode ?? 500
-  let message = error.message
-  let statusMessage = error.statusMessage
-  if (down) {
+  const domain = domainErrorOf(error)
+  let statusCode = domain ? HTTP_STATUS[domain.kind] : error.statusCode ?? 500
+  let message = domain ? domain.message : error.message
+  let statusMessage = domain ? undefined : error.statusMessage
+  if (domain) {
+    if (domain.kind === 'unavailable') setResponseHeader(event, 'Retry-After', 5)
+  }
+  else if (down) {
     statusCode = 503
     statusMessage = 'Service Unavailable'
     message = `The ${down} is not reachable right now; try again in a moment.`
@@ -35,7 +50,7 @@ const handler: NitroErrorHandler = async (error, event) => {
     console.error('[benchlore] unhandled error on', event.method, url.pathname, error.cause ?? error)
     message = 'Something went wrong on the server; the error was logged.'
   }
-  const data = statusCode < 500 || down ? error.data : undefined
+  const data = domain ? domain.data : statusCode < 500 || down ? error.data : undefined
   setResponseStatus(event, statusCode, statusMessage)
   setResponseHeader(event, 'Content-Type', 'application/json; charset=utf-8')
   setResponseHeader(event, 'Cache-Control', 'no-store')
