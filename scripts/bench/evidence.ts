@@ -12,10 +12,10 @@ import { listRecords } from '../../server/services/records'
 import { ObjectStore, s3ConfigFromEnv } from '../../server/services/storage'
 import { RecordListQuery } from '../../shared/types/records'
 import { openBenchDatabase, timings } from '../lib/bench-stack'
+import { seededRandom } from '../../shared/utils/random'
 
 const N = Number(process.env.BENCH_RECORDS ?? 100_000)
-let seed = 42
-const rand = () => ((seed = (seed * 1664525 + 1013904223) >>> 0) / 4294967296)
+const rand = seededRandom(42)
 
 const bench = await openBenchDatabase()
 try {

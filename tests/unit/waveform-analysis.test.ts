@@ -8,7 +8,8 @@ import {
   type WaveformAnalysis,
 } from '../../shared/utils/waveform/analyse'
 import { decimateMinMax } from '../../shared/utils/waveform/decimate'
-import { seededGaussian, seededRandom, synthesiseCapture, type SynthOptions } from '../../shared/utils/waveform/synth'
+import { seededRandom } from '../../shared/utils/random'
+import { seededGaussian, synthesiseCapture, type SynthOptions } from '../../shared/utils/waveform/synth'
 
 // A second, independent FFT from the registry (radix-2 Cooley–Tukey, untyped CommonJS).
 const require = createRequire(import.meta.url)

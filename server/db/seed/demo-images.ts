@@ -4,6 +4,7 @@
 // always draws the same picture, and no two pictures look alike.
 import sharp from 'sharp'
 import { DEMO_IMAGES } from './demo-content'
+import { seededRandom } from '../../../shared/utils/random'
 
 export const DEMO_IMAGE_WIDTH = 1200
 export const DEMO_IMAGE_HEIGHT = 800
@@ -46,17 +47,6 @@ function hashName(text: string): number {
     h = Math.imul(h, 0x01000193)
   }
   return h >>> 0
-}
-
-function seededRandom(seed: number): () => number {
-  // mulberry32
-  let a = seed
-  return () => {
-    a = (a + 0x6D2B79F5) | 0
-    let t = Math.imul(a ^ (a >>> 15), 1 | a)
-    t = (t + Math.imul(t ^ (t >>> 7), 61 | t)) ^ t
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296
-  }
 }
 
 interface Dice { next: () => number, range: (lo: number, hi: number) => number, int: (lo: number, hi: number) => number, pick: <T>(items: readonly T[]) => T }

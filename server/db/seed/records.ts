@@ -4,18 +4,7 @@ import { Procedure, RecordSymptom, RepairRecord, Revision, type User, useDb } fr
 import type { StoredStep } from '../models/repair-record'
 import { rebuildCauseCounts } from '../../services/evidence'
 import { DEMO_RECORD_PROFILE, type DemoPerson } from './demo-content'
-
-/** Deterministic PRNG (mulberry32) so every seeded workshop has the same history. */
-function prng(seed: number) {
-  let a = seed >>> 0
-  return () => {
-    a = (a + 0x6D2B79F5) >>> 0
-    let t = a
-    t = Math.imul(t ^ (t >>> 15), t | 1)
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61)
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296
-  }
-}
+import { seededRandom } from '../../../shared/utils/random'
 
 function pick<T>(rand: () => number, weighted: Array<[T, number]>): T {
   const total = weighted.reduce((s, [, w]) => s + w, 0)
@@ -50,7 +39,7 @@ function readingFor(step: RevisionContent['steps'][number], failing: boolean): s
  */
 export async function seedRecords(people: Record<DemoPerson, User>, count = 240): Promise<number> {
   if (await RepairRecord.count()) return 0
-  const rand = prng(20261201)
+  const rand = seededRandom(20261201)
   const procs = await Procedure.findAll({ where: { slug: Object.keys(DEMO_RECORD_PROFILE), status: 'active' } })
   const revs = new Map((await Revision.findAll({ where: { id: procs.map(p => p.publishedRevisionId).filter((x): x is number => !!x) } })).map(r => [r.procedureId, r]))
   const usable = procs.filter(p => revs.has(p.id))

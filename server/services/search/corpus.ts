@@ -7,21 +7,10 @@
  * that procedure alone, whatever else the generated text happens to say.
  */
 import type { SearchDocument, SearchVocabulary, SymptomVocabularyEntry } from './engine'
+import { seededRandom } from '../../../shared/utils/random'
 
 export type LabelledQuery = { q: string, relevant: number[], kind: 'exact' | 'typo' | 'prefix' | 'synonym' }
 export type SyntheticCorpus = { docs: SearchDocument[], vocabulary: SearchVocabulary, queries: LabelledQuery[] }
-
-/** mulberry32: small, fast, and the same sequence on every platform for a given seed. */
-function prng(seed: number): () => number {
-  let a = seed >>> 0
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0
-    let t = a
-    t = Math.imul(t ^ (t >>> 15), t | 1)
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61)
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296
-  }
-}
 
 const DEVICE_TYPES: Array<[string, string]> = [
   ['leading-edge-dimmer', 'Leading-edge dimmer'],
@@ -250,7 +239,7 @@ function typo(word: string, rnd: () => number): string {
  * (a quarter of each kind). Same `n` and `seed`, same corpus.
  */
 export function generateCorpus(n: number, seed: number): SyntheticCorpus {
-  const rnd = prng(seed)
+  const rnd = seededRandom(seed)
   const int = (lo: number, hi: number): number => lo + Math.floor(rnd() * (hi - lo + 1))
   const pick = <T>(a: readonly T[]): T => a[Math.floor(rnd() * a.length)]!
   const sample = <T>(a: readonly T[], k: number): T[] => {

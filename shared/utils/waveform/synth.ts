@@ -4,6 +4,8 @@
  * seed and the capture benchmark, so every run sees the same samples for the same options.
  */
 
+import { seededRandom } from '../random'
+
 export type SynthCut = 'none' | 'leading_edge' | 'trailing_edge' | 'half_missing' | 'half_uncontrolled' | 'dead'
 export type SynthEdge = 'leading_edge' | 'trailing_edge'
 
@@ -61,18 +63,6 @@ export interface SynthOptions {
   edgeDurationS?: number
   /** Seed of the noise generator. */
   seed?: number
-}
-
-/** Small, fast, seedable PRNG (Mulberry32); uniform on [0, 1). */
-export function seededRandom(seed: number): () => number {
-  let a = seed >>> 0
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0
-    let x = a
-    x = Math.imul(x ^ (x >>> 15), x | 1)
-    x ^= x + Math.imul(x ^ (x >>> 7), x | 61)
-    return ((x ^ (x >>> 14)) >>> 0) / 4294967296
-  }
 }
 
 /** Standard normal deviates from a uniform source (Box–Muller). */
