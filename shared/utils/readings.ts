@@ -26,6 +26,35 @@ export type EvaluateReadingResult
   = | { ok: true, parsed: ParsedReading, verdict: ReadingVerdict, pass: boolean, expected: string, raises: string[] }
     | { ok: false, error: string }
 
+/**
+ * A reading that would fail the step only because of how it was probably typed (`580MV` on a
+ * diode test): no verdict, and a question for the technician instead.
+ */
+export interface QuestionedReading {
+  ok: true
+  parsed: ParsedReading
+  verdict: null
+  pass: null
+  expected: string
+  raises: string[]
+  /** E.g. `did you mean 580 mV?` */
+  question: string
+  /** The reading as it would fit, ready to put back in the field, e.g. `580 mV`. */
+  suggestion: string
+}
+
+export type EvaluateReadingAnswer = EvaluateReadingResult | QuestionedReading
+
+export interface EvaluateReadingOptions {
+  /**
+   * Ask rather than judge when the typed text fails the step but a likely slip would fit it:
+   * an SI prefix in the wrong case (`MV` for `mV`, `mhz` for `MHz`, `MF` for the old µF marking)
+   * that puts the reading 10³ or more outside the window, or a lone `1.` (the overrange display)
+   * where the number 1 would pass.
+   */
+  ask?: boolean
+}
+
 /** IEC 60062 tolerance letters, in percent. */
 export const TOLERANCE_LETTERS: Readonly<Record<string, number>> = {
   B: 0.1,
@@ -97,7 +126,11 @@ function withTolerance(display: string, tolerancePct: number | undefined): strin
 
 // What meters show on overload, and what people type for it. "0L" is the display misread as a
 // zero; taking it for 0 Ω would pass a blown fuse as intact, so it is read as open.
-const OPEN_TEXT = /^[-+]?(?:o\.?l\.?|0\.?l|open(?: circuit)?|∞|inf(?:inity)?|over ?load)$/i
+const OPEN_TEXT = /^([-+]?)(?:o\.?l\.?|0\.?l|open(?: circuit)?|∞|inf(?:inity)?|over ?load)$/i
+// Meters with a 3½-digit display show a lone leading 1 (often with its decimal point) when over range.
+const LONE_ONE = /^([-+]?)1\.$/
+// A sign typed as a minus sign or an en dash, or set apart by a space ("– 0.58 V").
+const LEADING_SIGN = /^([-+\u2212\u2013])\s*/
 const SHORT_TEXT = /^short(?:ed)?(?: circuit)?$/i
 
 // Resistor RKM letters stand where the decimal point goes. Lower-case r and k are how the code
@@ -107,7 +140,7 @@ const RKM_RESISTANCE_LETTERS: Record<string, number> = { R: 0, r: 0, L: -3, l: -
 const RKM_CAPACITANCE_LETTERS: Record<string, number> = { p: -12, n: -9, u: -6, µ: -6, μ: -6, m: -3 }
 const RKM_CODE = /^(\d*)([A-Za-zµμ])(\d*)([BCDFGJKMbcdfgjkm])?$/
 
-const NUMBER_AT_START = /^([+\-−]?)(\d+(?:[.,]\d*)?|[.,]\d+)(?:[eE]([+\-−]?\d+))?/
+const NUMBER_AT_START = /^([+-]?)(\d+(?:[.,]\d*)?|[.,]\d+)(?:[eE]([+\-−]?\d+))?/
 const TRAILING_TOLERANCE = /(?:±|\+\/-|\+-)\s*(\d+(?:[.,]\d+)?)\s*%$/
 
 // Base-unit spellings typed at the bench. Multi-letter ones come first so that `degC` is not
@@ -123,6 +156,19 @@ const UNIT_SPELLINGS: Array<[RegExp, BaseUnit]> = [
   [/[Ff]$/, 'F'],
   [/[Cc]$/, '°C'],
 ]
+
+// What follows the unit on AC and DC ranges: `VAC`, `V AC`, `V~`, `Vrms`, `VDC`, `mA DC`.
+const CURRENT_KIND = /^(.*[VvAa])(ac|dc|rms|~)$/i
+// MFD (and mfd) is the old marking for microfarads on capacitor bodies, whatever its case.
+const MICROFARAD_MARKING = /^mfd$/i
+// An ohm sign or word after an RKM code (`4k7Ω`, `4K7 ohm`).
+const RKM_OHM_SUFFIX = /\s*(?:[\u03A9\u2126]|ohms?)$/i
+// Where a DC or AC mark on the reading contradicts the step's quantity.
+const KIND_CLASHES: Partial<Record<Quantity, 'ac' | 'dc'>> = { dc_voltage: 'ac', ac_voltage: 'dc' }
+// Quantities whose meter ranges are signed, so that `-OL` is an overrange below the scale. A
+// diode test, a resistance and an AC voltage have no negative reading: their `-OL` is open.
+const SIGNED_BASES: ReadonlySet<BaseUnit> = new Set(['V', 'A', '°C'])
+const UNSIGNED_QUANTITIES: ReadonlySet<Quantity> = new Set(['diode_drop', 'ac_voltage'])
 
 /** Prefix letters beyond SI_PREFIXES that technicians type without ambiguity. */
 const LOOSE_PREFIXES: Record<string, number> = { K: 3, U: -6 }
@@ -163,7 +209,8 @@ function finish(text: string, value: number, unit: BaseUnit | null, ctx: Context
 }
 
 function readRkm(text: string, ctx: Context): ParseReadingResult | null {
-  const m = RKM_CODE.exec(text)
+  const code = ctx.base === null || ctx.base === 'Ω' ? text.replace(RKM_OHM_SUFFIX, '') : text
+  const m = RKM_CODE.exec(code)
   if (!m) return null
   const [, before = '', letter = '', after = '', toleranceLetter] = m
   if (before === '' && after === '') return null
@@ -188,9 +235,24 @@ function readRkm(text: string, ctx: Context): ParseReadingResult | null {
   return finish(text, scaled(exponent), 'Ω', ctx, tolerancePct)
 }
 
-function readUnitText(unitText: string, ctx: Context): { exponent: number, base: BaseUnit | null } | { error: string } {
+interface UnitRead {
+  exponent: number
+  base: BaseUnit | null
+  /** `ac` or `dc` when the unit carried such a mark (`VAC`, `V~`, `Vrms`, `VDC`). */
+  kind?: 'ac' | 'dc'
+}
+
+function readUnitText(unitText: string, ctx: Context): UnitRead | { error: string } {
   const compact = unitText.replace(/\s+/g, '')
   if (compact === '') return { exponent: ctx.bareExponent, base: ctx.base }
+  if (MICROFARAD_MARKING.test(compact)) return { exponent: -6, base: 'F' }
+  if ((compact === '°' || compact === 'º') && ctx.base === '°C') return { exponent: 0, base: '°C' }
+  const marked = CURRENT_KIND.exec(compact)
+  if (marked) {
+    const unit = readUnitText(marked[1]!, ctx)
+    if ('error' in unit || unit.base === null) return unit
+    return { ...unit, kind: marked[2]!.toLowerCase() === 'dc' ? 'dc' : 'ac' }
+  }
   for (const [spelling, base] of UNIT_SPELLINGS) {
     const m = spelling.exec(compact)
     if (!m) continue
@@ -212,10 +274,28 @@ function readUnitText(unitText: string, ctx: Context): { exponent: number, base:
   return { error: `unknown unit "${unitText.trim()}" (Benchlore reads V, A, Ω, F, Hz and °C, with a prefix p, n, µ, m, k, M or G)` }
 }
 
+function normaliseSign(typed: string): string {
+  return typed.replace(LEADING_SIGN, (_, sign: string) => (sign === '+' ? '+' : '-'))
+}
+
+/** The meter's overrange: open, or below the scale (`-OL`) on a range that has a sign. */
+function overrange(negative: boolean, ctx: Context): ParseReadingResult {
+  const signed = ctx.base !== null && SIGNED_BASES.has(ctx.base) && !(ctx.quantity && UNSIGNED_QUANTITIES.has(ctx.quantity))
+  if (negative && signed) {
+    return { ok: true, reading: { value: -Infinity, unit: ctx.base, display: '-OL', open: false, short: false } }
+  }
+  return { ok: true, reading: { value: Infinity, unit: ctx.base, display: 'OL', open: true, short: false } }
+}
+
 /**
  * Reads what a technician types for a meter reading: SI values with or without a unit
  * (`470 kΩ`, `0,58V`, `10uF`), IEC 60062 RKM codes with an optional tolerance letter (`4K7J`),
- * the meter's overload (`OL`, `open`) and `short`. A bare number takes the step's unit.
+ * the meter's overload (`OL`, `open`, a lone `1.`) and `short`. A bare number takes the step's unit.
+ *
+ * Also the trade's suffixes: `VAC`, `V AC`, `V~`, `Vrms`, `VDC`, `V DC` (an AC mark on a DC step,
+ * or the reverse, is refused), `MFD`/`mfd` for µF, a bare `°` on a temperature step, an ohm
+ * sign after an RKM code (`4k7Ω`), a sign typed as `−` or `–` or spaced from the number, and
+ * `-OL` as an overrange below the scale on signed ranges (DC volts, amps, °C; elsewhere open).
  */
 export function parseReading(text: string, opts: ParseReadingOptions = {}): ParseReadingResult {
   let ctx: Context = { base: null, bareExponent: 0, quantity: opts.quantity }
@@ -231,13 +311,13 @@ export function parseReading(text: string, opts: ParseReadingOptions = {}): Pars
     ctx = { ...ctx, base: BASE_UNIT[opts.quantity] }
   }
 
-  const typed = typeof text === 'string' ? text.trim() : ''
-  if (typed === '') return fail('no reading was typed')
-  if (typed.length > 64) return fail('a reading is at most 64 characters')
+  const trimmed = typeof text === 'string' ? text.trim() : ''
+  if (trimmed === '') return fail('no reading was typed')
+  if (trimmed.length > 64) return fail('a reading is at most 64 characters')
+  const typed = normaliseSign(trimmed)
 
-  if (OPEN_TEXT.test(typed)) {
-    return { ok: true, reading: { value: Infinity, unit: ctx.base, display: 'OL', open: true, short: false } }
-  }
+  const over = OPEN_TEXT.exec(typed) ?? LONE_ONE.exec(typed)
+  if (over) return overrange(over[1] === '-', ctx)
   if (SHORT_TEXT.test(typed)) {
     const display = ctx.base === null ? 'short' : `short (${formatQuantity(0, ctx.base)})`
     return { ok: true, reading: { value: 0, unit: ctx.base, display, open: false, short: true } }
@@ -247,7 +327,7 @@ export function parseReading(text: string, opts: ParseReadingOptions = {}): Pars
   if (rkm) return rkm
 
   const number = NUMBER_AT_START.exec(typed)
-  if (!number) return fail(`could not read "${typed}": ${HINT}`)
+  if (!number) return fail(`could not read "${trimmed}": ${HINT}`)
   const [whole, sign = '', digits = '', exp] = number
   let rest = typed.slice(whole.length)
   let tolerancePct: number | undefined
@@ -258,14 +338,18 @@ export function parseReading(text: string, opts: ParseReadingOptions = {}): Pars
   }
   const unit = readUnitText(rest, ctx)
   if ('error' in unit) {
-    return fail(unit.error.startsWith('unknown unit') ? unit.error : `could not read "${typed}": ${unit.error}`)
+    return fail(unit.error.startsWith('unknown unit') ? unit.error : `could not read "${trimmed}": ${unit.error}`)
+  }
+  const clash = ctx.quantity === undefined ? undefined : KIND_CLASHES[ctx.quantity]
+  if (unit.kind !== undefined && unit.kind === clash) {
+    return fail(`"${trimmed}" is ${unit.kind === 'ac' ? 'an AC' : 'a DC'} reading; this step reads ${ctx.quantity!.replace('_', ' ')}`)
   }
   // One decimal exponent, so 10 µF is the double nearest 1e-5 rather than 10 × 1e-6.
   const exponent = Number((exp ?? '0').replace('−', '-')) + unit.exponent
   const magnitude = Number(`${digits.replace(',', '.')}e${exponent}`)
   // + 0 turns a typed "-0" into plain zero.
   const value = (sign === '' || sign === '+' ? magnitude : -magnitude) + 0
-  return finish(typed, value, unit.base, ctx, tolerancePct)
+  return finish(trimmed, value, unit.base, ctx, tolerancePct)
 }
 
 // Readings exactly on a limit must pass even when the limit came from n·(1 ± t) in binary.
@@ -307,6 +391,61 @@ export function describeExpected(spec: MeasurementSpec): string {
   return window
 }
 
+/** The verdict of a parsed reading against a checked spec, by the rules of `evaluateReading`. */
+function judge(parsed: ParsedReading, good: MeasurementSpec): { verdict: ReadingVerdict, pass: boolean } {
+  const { min, max } = expectedWindow(good)
+  if (parsed.open || parsed.value === Infinity) return { verdict: 'open', pass: good.openExpected === true }
+  if (min === undefined && max === undefined) return { verdict: 'low', pass: false }
+  // A negative overrange is below any finite limit; the tolerance in `below` would swallow −∞.
+  if (min !== undefined && (parsed.value === -Infinity || below(parsed.value, min))) return { verdict: 'low', pass: false }
+  if (max !== undefined && above(parsed.value, max)) return { verdict: 'high', pass: false }
+  return { verdict: 'in_range', pass: true }
+}
+
+/** Readings this many times beyond the window, one way or the other, are questioned rather than judged. */
+const QUESTION_FACTOR = 1e3
+
+const WRONG_CASE_PREFIX = /^([+-]?(?:\d+(?:[.,]\d*)?|[.,]\d+)(?:[eE][+-]?\d+)?)\s*([mM])(.*)$/
+
+function farOutside(value: number, good: MeasurementSpec): boolean {
+  const { min, max } = expectedWindow(good)
+  if (!(value > 0 && Number.isFinite(value))) return false
+  if (max !== undefined && max > 0 && value >= QUESTION_FACTOR * max) return true
+  return min !== undefined && min > 0 && value <= min / QUESTION_FACTOR
+}
+
+/** The likely slip behind a failing typed reading, as the reading it should have been. */
+function likelySlip(typed: string, parsed: ParsedReading, good: MeasurementSpec): { question: string, suggestion: string } | null {
+  const opts: ParseReadingOptions = { unit: good.unit, quantity: good.quantity }
+  const base = BASE_UNIT[good.quantity]
+  const passes = (text: string) => {
+    const alt = parseReading(text, opts)
+    return alt.ok && judge(alt.reading, good).pass ? alt.reading : null
+  }
+  const shown = normaliseSign(typed.trim())
+  if (LONE_ONE.test(shown)) {
+    const one = passes(shown.slice(0, -1))
+    if (!one) return null
+    const suggestion = formatQuantity(one.value, base)
+    return { question: `did you mean ${suggestion}? "${typed.trim()}" reads as the meter's overrange (OL)`, suggestion }
+  }
+  const m = WRONG_CASE_PREFIX.exec(shown)
+  if (!m || !farOutside(parsed.value, good)) return null
+  const [, number = '', prefix = '', rest = ''] = m
+  // "MFD" is the µF marking, not a prefix M before "FD".
+  if (MICROFARAD_MARKING.test(`${prefix}${rest.replace(/\s+/g, '')}`)) return null
+  const alternatives = [prefix === 'M' ? 'm' : 'M']
+  // "MF" and "mF" on old capacitor bodies meant microfarads.
+  if (base === 'F') alternatives.push('µ')
+  for (const alt of alternatives) {
+    if (passes(`${number}${alt}${rest}`)) {
+      const suggestion = `${number} ${alt}${base}`
+      return { question: `did you mean ${suggestion}?`, suggestion }
+    }
+  }
+  return null
+}
+
 /**
  * Judges a reading against a step's spec.
  *
@@ -315,14 +454,32 @@ export function describeExpected(spec: MeasurementSpec): string {
  * - Open (`OL`) is its own verdict: it passes only when the spec expects open.
  * - A spec that only expects open (a thermal fuse that must have blown, a MOV that must not
  *   conduct) fails any finite reading with verdict `low`: the part conducts where it should not.
- * - Otherwise the value is compared with the window, limits inclusive; `short` reads as 0.
+ * - Otherwise the value is compared with the window, limits inclusive; `short` reads as 0 and a
+ *   negative overrange (`-OL` on a DC step) as −∞.
  * - `raises` lists the cause keys the step points to, and only when the reading fails.
+ * - With `{ ask: true }`, a typed reading that fails only through a likely slip is not judged:
+ *   the answer has `verdict: null` and a `question`, e.g. `580MV` on a 0.4–0.9 V diode test →
+ *   `{ verdict: null, question: 'did you mean 580 mV?', suggestion: '580 mV' }`.
+ *
+ * @example
+ * evaluateReading('0.012', { quantity: 'diode_drop', unit: 'V', min: 0.4, max: 0.9 }, ['bridge_shorted'])
+ * // → { ok: true, verdict: 'low', pass: false, raises: ['bridge_shorted'], expected: '0.4 V – 0.9 V', ... }
+ * evaluateReading('580MV', { quantity: 'diode_drop', unit: 'V', min: 0.4, max: 0.9 }, [], { ask: true })
+ * // → { ok: true, verdict: null, question: 'did you mean 580 mV?', suggestion: '580 mV', ... }
  */
+export function evaluateReading(input: string | ParsedReading, spec: MeasurementSpec, failPointsTo?: string[]): EvaluateReadingResult
+export function evaluateReading(
+  input: string | ParsedReading,
+  spec: MeasurementSpec,
+  failPointsTo: string[] | undefined,
+  options: EvaluateReadingOptions,
+): EvaluateReadingAnswer
 export function evaluateReading(
   input: string | ParsedReading,
   spec: MeasurementSpec,
   failPointsTo: string[] = [],
-): EvaluateReadingResult {
+  options: EvaluateReadingOptions = {},
+): EvaluateReadingAnswer {
   const checked = MeasurementSpec.safeParse(spec)
   if (!checked.success) {
     const issue = checked.error.issues[0]
@@ -346,28 +503,10 @@ export function evaluateReading(
   }
 
   const expected = describeExpected(good)
-  const { min, max } = expectedWindow(good)
-  let verdict: ReadingVerdict
-  let pass: boolean
-  if (parsed.open || parsed.value === Infinity) {
-    verdict = 'open'
-    pass = good.openExpected === true
-  }
-  else if (min === undefined && max === undefined) {
-    verdict = 'low'
-    pass = false
-  }
-  else if (min !== undefined && below(parsed.value, min)) {
-    verdict = 'low'
-    pass = false
-  }
-  else if (max !== undefined && above(parsed.value, max)) {
-    verdict = 'high'
-    pass = false
-  }
-  else {
-    verdict = 'in_range'
-    pass = true
+  const { verdict, pass } = judge(parsed, good)
+  if (!pass && options.ask && typeof input === 'string') {
+    const slip = likelySlip(input, parsed, good)
+    if (slip) return { ok: true, parsed, verdict: null, pass: null, expected, raises: [], ...slip }
   }
   const raises = pass ? [] : [...new Set(failPointsTo)]
   return { ok: true, parsed, verdict, pass, expected, raises }

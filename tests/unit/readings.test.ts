@@ -477,3 +477,127 @@ describe('evaluateReading — errors and causes', () => {
     expect(evaluateReading('0.06 kHz', mains)).toMatchObject({ verdict: 'high' })
   })
 })
+
+describe('parseReading — the trade\'s suffixes and signs', () => {
+  it.each([
+    ['230 VAC', 'ac_voltage', 230, 'V', 'AC mark after the unit on mains ranges (common practice)'],
+    ['230 V AC', 'ac_voltage', 230, 'V', 'AC mark set apart (common practice)'],
+    ['230V~', 'ac_voltage', 230, 'V', '~ is the AC symbol, IEC 60417-5032 (from memory)'],
+    ['230 Vrms', 'ac_voltage', 230, 'V', 'true-RMS meters label AC volts Vrms (common practice)'],
+    ['230 vac', 'ac_voltage', 230, 'V', 'lower-case AC mark (common practice)'],
+    ['12 VDC', 'dc_voltage', 12, 'V', 'DC mark on adapters and meters (common practice)'],
+    ['12 V DC', 'dc_voltage', 12, 'V', 'DC mark set apart (common practice)'],
+    ['150 mA DC', 'current', 0.15, 'A', 'DC mark after a current (common practice)'],
+    ['10 MFD', 'capacitance', 10e-6, 'F', 'MFD is the old microfarad marking on capacitor bodies (common practice)'],
+    ['10mfd', 'capacitance', 10e-6, 'F', 'mfd, the same marking in lower case (common practice)'],
+    ['85°', 'temperature', 85, '°C', 'a bare degree sign on a temperature step (common practice)'],
+    ['85 °', 'temperature', 85, '°C', 'a bare degree sign set apart (common practice)'],
+    ['4k7Ω', 'resistance', 4_700, 'Ω', 'IEC 60062 RKM code followed by the ohm sign (common practice)'],
+    ['4K7 ohm', 'resistance', 4_700, 'Ω', 'IEC 60062 RKM code followed by the word ohm (common practice)'],
+    ['R47Ω', 'resistance', 0.47, 'Ω', 'IEC 60062 RKM R47 = 0.47 Ω with the ohm sign'],
+    ['–0.58 V', 'dc_voltage', -0.58, 'V', 'en dash typed for minus (phones and word processors substitute it; common practice)'],
+    ['- 0.58 V', 'dc_voltage', -0.58, 'V', 'minus spaced from the number (common practice)'],
+    ['− 12 mA', 'current', -0.012, 'A', 'U+2212 MINUS SIGN spaced from the number (Unicode; common practice)'],
+  ] as Array<[string, Quantity, number, BaseUnit, string]>)('%s on a %s step → %s %s (%s)', (text, quantity, value, unit) => {
+    const r = read(text, { quantity })
+    expectClose(r.value, value)
+    expect(r.unit).toBe(unit)
+    expect(r.open).toBe(false)
+  })
+
+  it.each([
+    ['230 VAC', 'dc_voltage', /"230 VAC" is an AC reading; this step reads dc voltage/],
+    ['230 V~', 'dc_voltage', /is an AC reading/],
+    ['12 VDC', 'ac_voltage', /"12 VDC" is a DC reading; this step reads ac voltage/],
+    ['10 MFD', 'resistance', /is a capacitance/],
+    ['85°', 'dc_voltage', /unknown unit "°"/],
+  ] as Array<[string, Quantity, RegExp]>)('%s on a %s step is refused (an AC mark on a DC step measures the wrong thing; common practice)', (text, quantity, message) => {
+    const result = parseReading(text, { quantity })
+    expect(result.ok).toBe(false)
+    if (!result.ok) expect(result.error).toMatch(message)
+  })
+
+  it.each([
+    ['1.', 'resistance', 'a lone leading 1 is the overrange of a 3½-digit display (meter manuals, common practice)'],
+    ['1.', 'diode_drop', 'a lone 1 on a diode test is an open junction (meter manuals, common practice)'],
+    ['–OL', 'resistance', 'en dash before OL on a resistance range is still open (common practice)'],
+    ['-OL', 'diode_drop', 'a diode test has no negative reading: -OL is open (common practice)'],
+    ['-OL', 'ac_voltage', 'AC volts have no sign: -OL is the overrange (common practice)'],
+  ] as Array<[string, Quantity, string]>)('%s on a %s step is open (%s)', (text, quantity) => {
+    expect(read(text, { quantity })).toMatchObject({ value: Infinity, open: true, display: 'OL' })
+  })
+
+  it.each([
+    ['-OL', 'dc_voltage', 'negative overrange on a DC range (meter manuals, common practice)'],
+    ['- OL', 'dc_voltage', 'negative overrange, spaced (common practice)'],
+    ['–OL', 'current', 'negative overrange with an en dash (common practice)'],
+    ['-1.', 'dc_voltage', 'a lone -1 is the negative overrange of a 3½-digit display (common practice)'],
+  ] as Array<[string, Quantity, string]>)('%s on a %s step is below the scale (%s)', (text, quantity) => {
+    expect(read(text, { quantity })).toMatchObject({ value: -Infinity, open: false, display: '-OL' })
+  })
+
+  it('a number with digits after the point is not the overrange display (common practice)', () => {
+    expect(read('1.0', { quantity: 'resistance' })).toMatchObject({ value: 1, open: false })
+    expect(read('1', { quantity: 'resistance' })).toMatchObject({ value: 1, open: false })
+  })
+})
+
+describe('evaluateReading — overrange verdicts', () => {
+  // 12 V rail: 11.4–12.6 V (±5 %, common practice for a regulated rail).
+  const rail: MeasurementSpec = { quantity: 'dc_voltage', unit: 'V', min: 11.4, max: 12.6 }
+
+  it('-OL on a DC step is low, not open (negative overrange, meter manuals; common practice)', () => {
+    expect(evaluateReading('-OL', rail, ['reversed_polarity'])).toMatchObject({ ok: true, verdict: 'low', pass: false, raises: ['reversed_polarity'] })
+    expect(evaluateReading('OL', rail)).toMatchObject({ verdict: 'open', pass: false })
+  })
+
+  it('1. on a continuity step is a blown fuse (lone 1 = overrange; thermal fuse OL when blown, common practice)', () => {
+    const fuse: MeasurementSpec = { quantity: 'continuity', unit: 'Ω', max: 5 }
+    expect(evaluateReading('1.', fuse, ['fuse_open'])).toMatchObject({ verdict: 'open', pass: false, raises: ['fuse_open'] })
+  })
+})
+
+describe('evaluateReading — a likely slip is questioned, not failed', () => {
+  // Good silicon junction 0.40–0.90 V (REFERENCES, meter manuals).
+  const silicon: MeasurementSpec = { quantity: 'diode_drop', unit: 'V', min: 0.4, max: 0.9 }
+  const ask = { ask: true }
+
+  it.each([
+    ['580MV', '580 mV', 'M for m on a diode test: 580 MV vs 0.4–0.9 V (SI Brochure Table 7: M = 10⁶, m = 10⁻³)', silicon],
+    ['580 MV', '580 mV', 'same, spaced', silicon],
+    ['150 MA', '150 mA', 'M for m on a 100–200 mA step (SI Brochure Table 7)', { quantity: 'current', unit: 'mA', min: 100, max: 200 }],
+    ['1.2 mhz', '1.2 MHz', 'm for M on a 1–1.5 MHz step (SI Brochure Table 7)', { quantity: 'frequency', unit: 'MHz', min: 1, max: 1.5 }],
+    ['0.1 MF', '0.1 µF', 'MF meant µF on old capacitor bodies (common practice)', { quantity: 'capacitance', unit: 'nF', nominal: 100, tolerancePct: 10 }],
+    ['0.1 MF', '0.1 mF', 'on an 80–120 µF step, 0.1 mF = 100 µF fits (SI Brochure Table 7)', { quantity: 'capacitance', unit: 'µF', min: 80, max: 120 }],
+    ['4.7 mΩ', '4.7 MΩ', 'm for M on a 4.7 MΩ resistor (SI Brochure Table 7)', { quantity: 'resistance', unit: 'MΩ', nominal: 4.7, tolerancePct: 5 }],
+    ['230 MVAC', '230 mV', 'wrong case before an AC mark (SI Brochure Table 7; common practice)', { quantity: 'ac_voltage', unit: 'mV', min: 200, max: 250 }],
+  ] as Array<[string, string, string, MeasurementSpec]>)('%s → "did you mean %s?" (%s)', (text, suggestion, _source, spec) => {
+    const answer = evaluateReading(text, spec, ['some_cause'], ask)
+    expect(answer).toMatchObject({ ok: true, verdict: null, pass: null, raises: [], question: `did you mean ${suggestion}?`, suggestion })
+    // The suggestion itself passes the step.
+    expect(evaluateReading(suggestion, spec)).toMatchObject({ ok: true, pass: true })
+    // Without asking, the same text keeps its verdict for existing callers.
+    expect(evaluateReading(text, spec, ['some_cause'])).toMatchObject({ ok: true, pass: false, raises: ['some_cause'] })
+  })
+
+  it.each([
+    ['0.95', silicon, 'an honest high reading: no prefix to blame'],
+    ['5 mV', silicon, 'a shorted junction in mV (< 50 mV, common meter beep threshold): 5 MV would not fit either'],
+    ['900 MV', { quantity: 'diode_drop', unit: 'V', min: 0.4, max: 0.85 } as MeasurementSpec, '900 mV fails too: no question'],
+    ['580MV', { quantity: 'diode_drop', unit: 'V', min: 0.05 } as MeasurementSpec, 'within a window with no maximum: judged, not asked'],
+    ['OL', silicon, 'an open junction is a verdict (meter manuals)'],
+  ] as Array<[string, MeasurementSpec, string]>)('%s is judged, not questioned (%s)', (text, spec) => {
+    const answer = evaluateReading(text, spec, [], ask)
+    expect(answer.ok).toBe(true)
+    if (answer.ok) expect(answer.verdict).not.toBeNull()
+  })
+
+  it('asks about a lone 1. where the number 1 would pass (lone 1 = overrange on 3½-digit meters, common practice)', () => {
+    const fuse: MeasurementSpec = { quantity: 'continuity', unit: 'Ω', max: 5 }
+    const answer = evaluateReading('1.', fuse, [], ask)
+    expect(answer).toMatchObject({ verdict: null, suggestion: '1 Ω' })
+    if (answer.ok && answer.verdict === null) expect(answer.question).toBe('did you mean 1 Ω? "1." reads as the meter\'s overrange (OL)')
+    // Where 1 would fail as well, the overrange stands.
+    expect(evaluateReading('1.', { quantity: 'continuity', unit: 'Ω', max: 0.5 }, [], ask)).toMatchObject({ verdict: 'open' })
+  })
+})
