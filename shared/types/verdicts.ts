@@ -141,7 +141,12 @@ export function possibleVerdicts(step: { measurement?: WindowSpec }): StepVerdic
   return out
 }
 
-/** Whether a verdict passes the step, by the rules of `evaluateReading`. */
+/**
+ * Whether a verdict passes the step, by the rules of `evaluateReading`.
+ *
+ * @example
+ * isPassingVerdict({ measurement: { quantity: 'resistance', unit: 'Ω', openExpected: true } }, 'open') // true
+ */
 export function isPassingVerdict(step: { measurement?: WindowSpec }, verdict: StepVerdict): boolean {
   if (verdict === 'pass' || verdict === 'in_range') return true
   return verdict === 'open' && step.measurement?.openExpected === true
@@ -181,7 +186,12 @@ export function verdictsOf(step: Pick<ReasoningStep, 'measurement' | 'failPoints
   return out
 }
 
-/** The cause keys a verdict of the step points to ([] for a verdict the step cannot give). */
+/**
+ * The cause keys a verdict of the step points to ([] for a verdict the step cannot give).
+ *
+ * @example
+ * verdictCauses(step, 'low') // ['bridge_shorted'], what `evaluateReading`'s `raises` becomes per verdict
+ */
 export function verdictCauses(step: Pick<ReasoningStep, 'measurement' | 'failPointsTo' | 'verdicts'>, verdict: StepVerdict): string[] {
   return verdictsOf(step)[verdict]?.causes ?? []
 }
@@ -195,12 +205,22 @@ const VERDICT_LABELS: Record<StepVerdict, string> = {
   fail: 'fail',
 }
 
-/** A verdict's short label, for edges and chips: `in range`, `low`, `high`, `OL`, `pass`, `fail`. */
+/**
+ * A verdict's short label, for edges and chips: `in range`, `low`, `high`, `OL`, `pass`, `fail`.
+ *
+ * @example
+ * verdictLabel('open') // 'OL'
+ */
 export function verdictLabel(verdict: StepVerdict): string {
   return VERDICT_LABELS[verdict]
 }
 
-/** The condition in words: `if it reads low`, `if it reads OL`, `if it passes`, `if it fails`. */
+/**
+ * The condition in words: `if it reads low`, `if it reads OL`, `if it passes`, `if it fails`.
+ *
+ * @example
+ * verdictCondition('in_range') // 'if it reads in range'
+ */
 export function verdictCondition(verdict: StepVerdict): string {
   if (verdict === 'pass') return 'if it passes'
   if (verdict === 'fail') return 'if it fails'

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest'
-import type { ReasoningCause, ReasoningStep } from '#shared/types/verdicts'
+import type { ReasoningCause, ReasoningStep, VerdictMap } from '#shared/types/verdicts'
 import {
   branchCounts,
   branchStatistics,
@@ -20,63 +20,37 @@ import { DIMMER_CAUSES, DIMMER_STEPS } from './fixtures/two-wire-dimmer-flow'
 
 const typed = (values: Record<string, string>) => recordVerdicts(DIMMER_STEPS, Object.fromEntries(Object.entries(values).map(([k, value]) => [k, { value }])))
 
-function withStep(i: number, change: Partial<ReasoningStep>): ReasoningStep[] {
-  return DIMMER_STEPS.map((s, j) => (j === i ? { ...s, ...change } : s))
-}
-
 describe('validateFlow — one test per kind of error, exact path and message', () => {
   it('accepts the dimmer flow', () => {
     expect(validateFlow({ causes: DIMMER_CAUSES, steps: DIMMER_STEPS })).toEqual({})
   })
 
-  it('a next that names no step', () => {
-    const steps = withStep(2, { verdicts: { low: { conclude: 'bridge_shorted' }, in_range: { next: 's9' } } })
-    expect(validateFlow({ causes: DIMMER_CAUSES, steps })).toEqual({
+  it.each([
+    ['a next that names no step', 2, { low: { conclude: 'bridge_shorted' }, in_range: { next: 's9' } }, {
       'steps.2.verdicts.in_range.next': 'step "Diode-test each bridge diode", if it reads in range: "s9" is not a step of this procedure',
-    })
-  })
-
-  it('a conclusion that names no cause', () => {
-    const steps = withStep(3, { verdicts: { open: { conclude: 'fuse_blown' }, in_range: { conclude: 'escalate' } } })
-    expect(validateFlow({ causes: DIMMER_CAUSES, steps })).toEqual({
+    }],
+    ['a conclusion that names no cause', 3, { open: { conclude: 'fuse_blown' }, in_range: { conclude: 'escalate' } }, {
       'steps.3.verdicts.open.conclude': 'step "Check the thermal fuse", if it reads OL: "fuse_blown" is not a cause of this procedure (nor "escalate")',
-    })
-  })
-
-  it('a verdict pointing to a cause the procedure does not have', () => {
-    const steps = withStep(1, { verdicts: { ...DIMMER_STEPS[1]!.verdicts, high: { causes: ['switch_shorted', 'gate_leak'] } } })
-    expect(validateFlow({ causes: DIMMER_CAUSES, steps })).toEqual({
+    }],
+    ['a verdict pointing to a cause the procedure does not have', 1, { ...DIMMER_STEPS[1]!.verdicts, high: { causes: ['switch_shorted', 'gate_leak'] } }, {
       'steps.1.verdicts.high.causes.1': 'step "Diode-test the switching device", if it reads high: "gate_leak" is not a cause of this procedure',
-    })
-  })
-
-  it('next and conclude on one verdict', () => {
-    const steps = withStep(1, { verdicts: { ...DIMMER_STEPS[1]!.verdicts, low: { next: 'bridge', conclude: 'switch_shorted' } } })
-    expect(validateFlow({ causes: DIMMER_CAUSES, steps })).toEqual({
+    }],
+    ['next and conclude on one verdict', 1, { ...DIMMER_STEPS[1]!.verdicts, low: { next: 'bridge', conclude: 'switch_shorted' } }, {
       'steps.1.verdicts.low': 'step "Diode-test the switching device", if it reads low: give either a next step or a conclusion, not both',
-    })
-  })
-
-  it('a verdict the step cannot give', () => {
-    const steps = withStep(3, { verdicts: { ...DIMMER_STEPS[3]!.verdicts, low: { causes: ['thermal_fuse_open'] }, fail: { next: 'capture' } } })
-    expect(validateFlow({ causes: DIMMER_CAUSES, steps })).toEqual({
+    }],
+    ['a verdict the step cannot give', 3, { ...DIMMER_STEPS[3]!.verdicts, low: { causes: ['thermal_fuse_open'] }, fail: { next: 'capture' } }, {
       'steps.3.verdicts.low': 'step "Check the thermal fuse" cannot read low: its expected range has no lower limit',
       'steps.3.verdicts.fail': 'step "Check the thermal fuse" cannot read fail: a step with a measurement reads in range, low, high or OL',
-    })
-  })
-
-  it('a loop', () => {
-    const steps = withStep(3, { verdicts: { open: { conclude: 'thermal_fuse_open' }, in_range: { next: 'switch' } } })
-    expect(validateFlow({ causes: DIMMER_CAUSES, steps })).toEqual({
+    }],
+    ['a loop', 3, { open: { conclude: 'thermal_fuse_open' }, in_range: { next: 'switch' } }, {
       'steps.3.verdicts.in_range.next': 'step "Check the thermal fuse", if it reads in range: going back to "Diode-test the switching device" makes a loop (switch → bridge → fuse → switch)',
-    })
-  })
-
-  it('a step that sends to itself', () => {
-    const steps = withStep(0, { verdicts: { fail: { next: 'switch' }, pass: { next: 'capture' } } })
-    expect(validateFlow({ causes: DIMMER_CAUSES, steps })).toEqual({
+    }],
+    ['a step that sends to itself', 0, { fail: { next: 'switch' }, pass: { next: 'capture' } }, {
       'steps.0.verdicts.pass.next': 'step "Capture the load voltage", if it passes: going back to "Capture the load voltage" makes a loop (capture → capture)',
-    })
+    }],
+  ] as Array<[string, number, VerdictMap, Record<string, string>]>)('%s', (_kind, i, verdicts, errors) => {
+    const steps = DIMMER_STEPS.map((s, j) => (j === i ? { ...s, verdicts } : s))
+    expect(validateFlow({ causes: DIMMER_CAUSES, steps })).toEqual(errors)
   })
 
   it('a step no path reaches', () => {
@@ -94,7 +68,7 @@ describe('validateFlow — one test per kind of error, exact path and message', 
   })
 
   it('gives zod-ready paths too', () => {
-    const steps = withStep(2, { verdicts: { in_range: { next: 's9' } } })
+    const steps = DIMMER_STEPS.map((s, j) => (j === 2 ? { ...s, verdicts: { in_range: { next: 's9' } } } : s))
     expect(flowIssues({ causes: DIMMER_CAUSES, steps })[0]!.path).toEqual(['steps', 2, 'verdicts', 'in_range', 'next'])
   })
 })

@@ -34,7 +34,10 @@ export function recordBranches(
 
 /**
  * Branch counts from whole records (each record's verdicts and confirmed cause key), in the
- * shape `LearnedStats.branches` keeps.
+ * shape `LearnedStats.branches` keeps: for rebuilding the counts, or without stored counts.
+ *
+ * @example
+ * branchStatistics(steps, branchCounts(steps, [{ verdicts: { capture: 'pass' }, confirmedCause: null, outcome: 'escalated' }]))
  */
 export function branchCounts(
   steps: ReadonlyArray<FlowStep>,

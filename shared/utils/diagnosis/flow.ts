@@ -39,6 +39,9 @@ export function isFlow(steps: ReadonlyArray<Pick<ReasoningStep, 'verdicts'>>): b
 /**
  * Every verdict of every step with where it leads, in step and verdict order. A `next` naming
  * no step is kept as written (`flowIssues` reports it).
+ *
+ * @example
+ * flowEdges(steps)[0] // { from: 'capture', verdict: 'pass', to: { kind: 'conclusion', conclude: 'escalate' }, explicit: true }
  */
 export function flowEdges(steps: ReadonlyArray<FlowStep>): FlowEdge[] {
   const edges: FlowEdge[] = []
@@ -57,7 +60,12 @@ export function flowEdges(steps: ReadonlyArray<FlowStep>): FlowEdge[] {
   return edges
 }
 
-/** The steps reachable from `start` (itself included) along any verdict. */
+/**
+ * The steps reachable from `start` (itself included) along any verdict.
+ *
+ * @example
+ * reachableSteps(steps, 'bridge') // Set { 'bridge', 'fuse' }
+ */
 export function reachableSteps(steps: ReadonlyArray<FlowStep>, start: string, edges: FlowEdge[] = flowEdges(steps)): Set<string> {
   const out = new Map<string, string[]>()
   for (const e of edges) if (e.to.kind === 'step') (out.get(e.from) ?? out.set(e.from, []).get(e.from)!).push(e.to.stepKey)
@@ -136,6 +144,9 @@ export function followFlow(steps: ReadonlyArray<FlowStep>, observed: Readonly<Re
 /**
  * The branches (step, verdict) a record's verdicts take along its flow path, each with its
  * conclusion if it reached one. Empty for a procedure that is not a flow.
+ *
+ * @example
+ * branchesTaken(steps, { capture: 'pass' }) // [{ stepKey: 'capture', verdict: 'pass', conclude: 'escalate' }]
  */
 export function branchesTaken(steps: ReadonlyArray<FlowStep>, observed: Readonly<Record<string, StepVerdict | null | undefined>>): FlowPosition['taken'] {
   return followFlow(steps, observed).taken

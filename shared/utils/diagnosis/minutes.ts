@@ -68,7 +68,12 @@ function histogramEntries(histogram: Readonly<Record<string, number>>): Array<[n
   return entries.sort((a, b) => a[0] - b[0])
 }
 
-/** How many observations a histogram holds. */
+/**
+ * How many observations a histogram holds.
+ *
+ * @example
+ * histogramTotal({ 3: 2, 5: 1 }) // 3
+ */
 export function histogramTotal(histogram: Readonly<Record<string, number>> | undefined): number {
   return histogram ? histogramEntries(histogram).reduce((sum, [, n]) => sum + n, 0) : 0
 }

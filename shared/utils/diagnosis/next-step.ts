@@ -33,7 +33,12 @@ export interface OrderStepsInput {
   stats?: Pick<LearnedStats, 'minutes'>
 }
 
-/** The causes a step can find: those its failing verdicts point to, each once. */
+/**
+ * The causes a step can find: those its failing verdicts point to, each once.
+ *
+ * @example
+ * causesFoundBy({ failPointsTo: ['open_reg'], measurement: rail }) // ['open_reg']
+ */
 export function causesFoundBy(step: Pick<ReasoningStep, 'measurement' | 'failPointsTo' | 'verdicts'>): string[] {
   const found = new Set<string>()
   for (const meaning of Object.values(verdictsOf(step))) {

@@ -224,7 +224,12 @@ export const MIN_CHANGE_SHOWN = 0.01
 /** How many changed causes a reading's summary names at most. */
 export const CHANGES_SHOWN = 3
 
-/** A probability as the bench reads it: `17 %`, `<1 %` for a sliver, `>99 %` short of certainty. */
+/**
+ * A probability as the bench reads it: `17 %`, `<1 %` for a sliver, `>99 %` short of certainty.
+ *
+ * @example
+ * formatProbability(0.1666) // '17 %'
+ */
 export function formatProbability(p: number): string {
   if (p > 0 && p < 0.005) return '<1 %'
   if (p < 1 && p >= 0.995) return '>99 %'

@@ -25,7 +25,12 @@ export interface LearnedStats {
   branches: Record<string, Partial<Record<StepVerdict, { taken: number, confirmed: number }>>>
 }
 
-/** Statistics of a procedure with no closed records. */
+/**
+ * Statistics of a procedure with no closed records.
+ *
+ * @example
+ * causeProbabilities({ causes, steps, stats: emptyStats() })
+ */
 export function emptyStats(): LearnedStats {
   return { records: 0, unlisted: 0, verdicts: {}, minutes: {}, branches: {} }
 }
