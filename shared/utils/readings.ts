@@ -1,7 +1,7 @@
 import { BASE_UNIT, MeasurementSpec, SI_PREFIXES, splitUnit } from '../types/measurement'
 import type { BaseUnit, Quantity } from '../types/measurement'
 
-/** A reading as the bench typed it, brought to SI. `value` is +Infinity for an open circuit. */
+/** A reading as the bench typed it, brought to SI. `value` is +Infinity for an open circuit, −Infinity below the scale (`-OL` on a DC range). */
 export interface ParsedReading {
   value: number
   unit: BaseUnit | null
