@@ -1,7 +1,7 @@
 // Seeds the demo workshop into the database and bucket named by the NUXT_DB_* / NUXT_S3_*
 // variables (idempotent).
 import { closeDatabase, dbConfigFromEnv, initDatabase } from '../server/db'
-import { seedDemo } from '../server/db/seed'
+import { seedDemo } from './seed/demo'
 import { ObjectStore, s3ConfigFromEnv } from '../server/services/storage'
 
 initDatabase(dbConfigFromEnv())

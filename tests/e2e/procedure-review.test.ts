@@ -16,7 +16,7 @@ const STAGE_TIMEOUT = 180_000
 
 const stamp = new Date().toISOString().replace(/\D/g, '').slice(0, 14)
 const TITLE = `Trailing-edge dimmer dead after a surge ${stamp}`
-// From the demo vocabulary (server/db/seed/demo-content.ts).
+// From the demo vocabulary (scripts/seed/demo-content.ts).
 const DEVICE_TYPE = 'rotary-led-dimmer-trailing-edge'
 const SYMPTOM = 'dead-no-output'
 

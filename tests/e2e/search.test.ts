@@ -5,7 +5,7 @@ import { BASE_URL, openBrowser, screenshot, signIn } from '../helpers/browser'
 
 type Browser = Awaited<ReturnType<typeof openBrowser>>
 
-// Demo library (server/db/seed/demo-content.ts): "VR-240 stuck at full brightness" is filed
+// Demo library (scripts/seed/demo-content.ts): "VR-240 stuck at full brightness" is filed
 // under "Does not dim" with the synonym "stuck at full brightness"; "VR-240 flickers on one
 // half-cycle" under "Flickers on one half-cycle". Both are mains work.
 const STUCK = 'vr240-stuck-at-full'

@@ -11,9 +11,9 @@ import {
   DEMO_RECORD_PROFILE,
   DEMO_STEP_IMAGES,
   DEMO_SYMPTOMS,
-} from '~~/server/db/seed/demo-content'
-import type { DemoProcedure, DemoRevision } from '~~/server/db/seed/demo-content'
-import { DEMO_IMAGE_HEIGHT, DEMO_IMAGE_WIDTH, renderDemoImage } from '~~/server/db/seed/demo-images'
+} from '~~/scripts/seed/demo-content'
+import type { DemoProcedure, DemoRevision } from '~~/scripts/seed/demo-content'
+import { DEMO_IMAGE_HEIGHT, DEMO_IMAGE_WIDTH, renderDemoImage } from '~~/scripts/seed/demo-images'
 
 const DECIDED = new Set(['published', 'superseded', 'rejected', 'changes_requested'])
 const ALL_REVISIONS = DEMO_PROCEDURES.flatMap(p => p.revisions.map((r, i) => ({ procedure: p, revision: r, index: i })))

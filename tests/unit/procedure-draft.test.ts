@@ -3,7 +3,7 @@ import { afterEach, beforeEach, describe, expect, it, vi } from 'vitest'
 import { nextTick } from 'vue'
 import { CauseContent, RevisionContent } from '#shared/types/procedure'
 import type { RevisionDetailDto } from '#shared/types/procedure-api'
-import { DEMO_PROCEDURES } from '~~/server/db/seed/demo-content'
+import { DEMO_PROCEDURES } from '~~/scripts/seed/demo-content'
 import { SAVE_DELAY_MS, draftPayload, keyFromName, normaliseDraft, useProcedureDraftStore } from '~~/app/stores/procedureDraft'
 
 describe('keyFromName', () => {

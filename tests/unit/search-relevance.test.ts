@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest'
-import { DEMO_DEVICE_TYPES, DEMO_PROCEDURES, DEMO_SYMPTOMS } from '../../server/db/seed/demo-content'
+import { DEMO_DEVICE_TYPES, DEMO_PROCEDURES, DEMO_SYMPTOMS } from '../../scripts/seed/demo-content'
 import { markdownToText, toSearchDocument } from '../../server/services/search/document'
 import { ProcedureSearchIndex, type SearchVocabulary } from '../../server/services/search/engine'
 

@@ -1,7 +1,7 @@
 import { Hash } from '@adonisjs/hash'
 import { Scrypt } from '@adonisjs/hash/drivers/scrypt'
-import type { Role } from '../../../shared/types/roles'
-import { User } from '../models'
+import type { Role } from '../../shared/types/roles'
+import { User } from '../../server/db/models'
 
 /** Demo-only password of every demo account (README.md says so). */
 export const DEMO_PASSWORD = 'bench-demo-2026'

@@ -1,7 +1,7 @@
 // Demo workshop content: "Harbour Lane Repair Co-op" and every person, model name, part number,
 // price and record rate in this file are invented for the demo. The trade facts are real
 // (diode-test rules of thumb, capacitor energy, CAT III, live-bench practice); the devices are not.
-import type { RevisionContentInput } from '../../../shared/types/procedure'
+import type { RevisionContentInput } from '../../shared/types/procedure'
 
 export interface DemoSymptom { slug: string, name: string, description: string, synonyms: string[] }
 export interface DemoDeviceType { slug: string, name: string, description: string }

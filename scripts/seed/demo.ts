@@ -1,4 +1,4 @@
-import type { ObjectStore } from '../../services/storage'
+import type { ObjectStore } from '../../server/services/storage'
 import type { DemoPerson } from './demo-content'
 import { seedProcedures, seedVocabulary } from './procedures'
 import { seedCaptures } from './captures'

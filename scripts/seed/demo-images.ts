@@ -4,7 +4,7 @@
 // always draws the same picture, and no two pictures look alike.
 import sharp from 'sharp'
 import { DEMO_IMAGES } from './demo-content'
-import { seededRandom } from '../../../shared/utils/random'
+import { seededRandom } from '../../shared/utils/random'
 
 export const DEMO_IMAGE_WIDTH = 1200
 export const DEMO_IMAGE_HEIGHT = 800

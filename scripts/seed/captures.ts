@@ -1,7 +1,7 @@
-import { captureToCsv, synthesiseCapture, type SynthOptions } from '../../../shared/utils/waveform/synth'
-import { Procedure, SignatureReference, type User } from '..'
-import { storeCapture } from '../../services/captures/store'
-import type { ObjectStore } from '../../services/storage'
+import { captureToCsv, synthesiseCapture, type SynthOptions } from '../../shared/utils/waveform/synth'
+import { Procedure, SignatureReference, type User } from '../../server/db'
+import { storeCapture } from '../../server/services/captures/store'
+import type { ObjectStore } from '../../server/services/storage'
 
 /** Synthetic demo captures (drawn by the synthesiser, not downloaded) and the references they illustrate. */
 const DEMO_CAPTURES: Array<{ label: string, synth: SynthOptions, refs: Array<{ procedure: string, kind: 'good' | 'fault', symptom?: string, note: string }> }> = [

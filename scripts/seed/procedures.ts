@@ -1,8 +1,8 @@
 import { createHash } from 'node:crypto'
 import sharp from 'sharp'
-import { RevisionContent } from '../../../shared/types/procedure'
-import { Attachment, DeviceType, Procedure, ReviewComment, Revision, Symptom, type User, useDb } from '..'
-import type { ObjectStore } from '../../services/storage'
+import { RevisionContent } from '../../shared/types/procedure'
+import { Attachment, DeviceType, Procedure, ReviewComment, Revision, Symptom, type User, useDb } from '../../server/db'
+import type { ObjectStore } from '../../server/services/storage'
 import { DEMO_DEVICE_TYPES, DEMO_IMAGES, DEMO_PROCEDURES, DEMO_STEP_IMAGES, DEMO_SYMPTOMS, type DemoPerson } from './demo-content'
 import { renderDemoImage } from './demo-images'
 

@@ -1,10 +1,10 @@
-import type { RevisionContent } from '../../../shared/types/procedure'
-import type { Outcome } from '../../../shared/types/records'
-import { Procedure, RecordSymptom, RepairRecord, Revision, type User, useDb } from '..'
-import type { StoredStep } from '../models/repair-record'
-import { rebuildCauseCounts } from '../../services/evidence'
+import type { RevisionContent } from '../../shared/types/procedure'
+import type { Outcome } from '../../shared/types/records'
+import { Procedure, RecordSymptom, RepairRecord, Revision, type User, useDb } from '../../server/db'
+import type { StoredStep } from '../../server/db/models/repair-record'
+import { rebuildCauseCounts } from '../../server/services/evidence'
 import { DEMO_RECORD_PROFILE, type DemoPerson } from './demo-content'
-import { seededRandom } from '../../../shared/utils/random'
+import { seededRandom } from '../../shared/utils/random'
 
 function pick<T>(rand: () => number, weighted: Array<[T, number]>): T {
   const total = weighted.reduce((s, [, w]) => s + w, 0)
