@@ -6,7 +6,8 @@
 // The database and bucket are those of the NUXT_DB_* and NUXT_S3_* variables; when none are set,
 // those of the local `npm start` stack under .data/ (which must be running: `npm run services`).
 import { join } from 'node:path'
-import { createBackup, restoreBackup } from './lib/backup'
+import { createBackup } from '../server/services/backup/create'
+import { restoreBackup } from '../server/services/backup/restore'
 import { done, fail, step } from './lib/proc'
 import { stackEnv, startProfile } from './lib/stack'
 
