@@ -2,7 +2,7 @@ import type { RevisionContent } from '../../shared/types/procedure'
 import type { Outcome } from '../../shared/types/records'
 import { Procedure, RecordSymptom, RepairRecord, Revision, type User, useDb } from '../../server/db'
 import type { StoredStep } from '../../server/db/models/repair-record'
-import { rebuildCauseCounts } from '../../server/services/evidence'
+import { rebuildCauseCounts } from '../../server/services/evidence/counts'
 import { DEMO_RECORD_PROFILE, type DemoPerson } from './demo-content'
 import { seededRandom } from '../../shared/utils/random'
 

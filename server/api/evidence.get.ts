@@ -1,5 +1,6 @@
 import { z } from 'zod'
-import { evidenceFor, liveProcedureFacts } from '../services/evidence'
+import type { EvidenceDto } from '#shared/types/records'
+import { evidenceFor, evidenceForProcedure } from '../services/evidence/ranking'
 
 const Query = z.object({
   symptoms: z.string().max(800).optional().transform(s => (s ? s.split(',').map(x => x.trim()).filter(Boolean).slice(0, 20) : [])),
@@ -10,10 +11,8 @@ const Query = z.object({
 export default defineEventHandler(async (event) => {
   await requireUser(event)
   const q = await getValidatedQuery(event, parseWith(Query))
-  if (q.procedure) {
-    const live = await liveProcedureFacts(q.procedure)
-    if (!live) throw createError({ statusCode: 404, message: 'No such live procedure.' })
-    return await evidenceFor({ deviceType: q.deviceType ?? live.deviceType, symptoms: q.symptoms.length ? q.symptoms : live.symptoms, procedureId: live.procedureId, candidates: live.causes })
-  }
-  return await evidenceFor({ deviceType: q.deviceType!, symptoms: q.symptoms })
+  const ranked = q.procedure
+    ? await evidenceForProcedure(q.procedure, { deviceType: q.deviceType, symptoms: q.symptoms })
+    : await evidenceFor({ deviceType: q.deviceType!, symptoms: q.symptoms })
+  return ranked satisfies EvidenceDto
 })

@@ -1,4 +1,4 @@
-import { deliverDueMail } from '../services/mail'
+import { deliverDueMail } from '../services/mail/outbox'
 
 // Sends queued mail every few seconds. Several instances may run this: rows are claimed with
 // SKIP LOCKED, so each message goes out once.

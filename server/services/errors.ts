@@ -39,6 +39,10 @@ export interface DomainErrorData {
   [key: string]: unknown
 }
 
+/**
+ * Never give one a `cause`: h3 wraps a thrown error as `cause: error.cause || error`, so the
+ * error handler would find the cause instead of this error and answer 500.
+ */
 export class DomainError extends Error {
   override name = 'DomainError'
   constructor(readonly kind: DomainErrorKind, message: string, readonly data?: DomainErrorData) {
@@ -49,7 +53,7 @@ export class DomainError extends Error {
 export const isDomainError = (e: unknown): e is DomainError => e instanceof DomainError
 
 export const invalid = (message: string, fields?: Record<string, string>, data?: DomainErrorData) =>
-  new DomainError('invalid', message, { ...data, ...(fields ? { fields } : {}) })
+  new DomainError('invalid', message, fields || data ? { ...data, ...(fields ? { fields } : {}) } : undefined)
 export const notFound = (what: string) => new DomainError('not_found', `No such ${what}.`)
 export const forbidden = (message: string) => new DomainError('forbidden', message)
 export const conflict = (message: string, data?: DomainErrorData) => new DomainError('conflict', message, data)

@@ -1,5 +1,5 @@
 import type { Transporter } from 'nodemailer'
-import { createTransport } from '../services/mail'
+import { createTransport } from '../services/mail/transport'
 import { ObjectStore } from '../services/storage'
 
 // Process-wide clients, created on first use from the runtime config.

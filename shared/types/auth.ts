@@ -55,3 +55,26 @@ export interface AdminUserDto extends UserDto {
   createdAt: string
   invitationPending: boolean
 }
+
+/** GET /api/me, and signing in (POST /api/auth/login, /api/invitations/accept): who is signed in. */
+export interface MeDto { user: UserDto }
+
+/** POST /api/auth/logout */
+export interface SignedOutDto { ok: true }
+
+/** PATCH /api/users/[id] */
+export interface AdminUserSavedDto { user: AdminUserDto }
+
+/** POST /api/users/invite */
+export interface InvitationSentDto { user: UserDto, expiresAt: string }
+
+export type InvitationStatus = 'valid' | 'used' | 'expired' | 'unknown'
+
+/** GET /api/invitations/[token]: the status, and for a valid link what the acceptance page shows. */
+export interface InvitationViewDto {
+  status: InvitationStatus
+  email?: string
+  name?: string
+  role?: Role
+  expiresAt?: string
+}

@@ -109,3 +109,12 @@ export const MeasurementSpec = z
     }
   })
 export type MeasurementSpec = z.infer<typeof MeasurementSpec>
+
+/** POST /api/readings/evaluate: a typed reading judged against a step's measurement. */
+export interface ReadingEvaluationDto {
+  parsed: { value: number | null, unit: BaseUnit | null, display: string, open: boolean }
+  verdict: 'in_range' | 'low' | 'high' | 'open'
+  pass: boolean
+  expected: string
+  raises: string[]
+}

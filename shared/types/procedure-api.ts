@@ -131,3 +131,33 @@ export interface RevisionComparisonDto {
   steps: ItemChange[]
   parts: ItemChange[]
 }
+
+/** The `{ data }` answer of a list that is not paged. */
+export interface ListDto<T> { data: T[] }
+
+/** GET /api/symptoms/common: accepted symptoms by how many repair records name them. */
+export interface CommonSymptomDto { slug: string, name: string, records: number }
+
+/** POST /api/procedures */
+export interface ProcedureCreatedDto {
+  procedure: { id: number, slug: string }
+  revision: { id: number, version: number }
+}
+
+/** POST /api/procedures/[slug]/revisions and PUT /api/revisions/[id]: the draft and its save counter. */
+export interface DraftSavedDto { revision: { id: number, version: number } }
+
+/** POST /api/revisions/[id]/submit, approve, request-changes, reject. */
+export interface RevisionStateDto { revision: { id: number, number: number | null, state: RevisionState } }
+
+/** POST /api/procedures/[slug]/retire */
+export interface ProcedureRetiredDto { procedure: { id: number, slug: string, status: ProcedureStatus } }
+
+/** POST /api/revisions/[id]/comments and PATCH /api/review-comments/[id] */
+export interface ReviewCommentSavedDto { comment: ReviewCommentDto }
+
+/** POST /api/uploads */
+export type UploadedImageDto = Pick<AttachmentDto, 'id' | 'url' | 'thumbnailUrl' | 'width' | 'height'>
+
+/** PATCH /api/uploads/[id] */
+export interface CaptionSavedDto { id: number, caption: string }

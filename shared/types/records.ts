@@ -182,3 +182,25 @@ export interface EvidenceCauseDto {
   of: number
   support: string
 }
+
+/** GET /api/evidence */
+export interface EvidenceDto { data: EvidenceCauseDto[], totalRecords: number }
+
+/** A record's routes (read, start, save, close, amend) answer the whole record. */
+export interface RecordReadDto { record: RecordDto }
+
+export interface StepFlagDto {
+  id: number
+  stepKey: string
+  kind: 'unclear' | 'wrong'
+  note: string
+  raisedBy: { id: number, name: string } | null
+  resolved: boolean
+  createdAt: string
+}
+
+/** POST /api/step-flags */
+export interface StepFlagRaisedDto { flag: Pick<StepFlagDto, 'id' | 'stepKey' | 'kind'> }
+
+/** POST /api/step-flags/[id]/resolve */
+export interface StepFlagResolvedDto { flag: { id: number, resolved: true } }

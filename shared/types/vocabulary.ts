@@ -1,4 +1,5 @@
 import { z } from 'zod'
+import type { DeviceTypeDto, SymptomDto } from './procedure-api'
 
 const name = z.string().trim().min(2, 'must be at least 2 characters').max(120, 'must be at most 120 characters')
 const synonyms = z.array(z.string().trim().min(1).max(80)).max(30, 'at most 30 synonyms').default([])
@@ -11,3 +12,9 @@ export const SymptomMergeBody = z.object({ into: z.string().trim().min(1).max(80
 export const DeviceTypeCreateBody = z.object({ name, description })
 export const DeviceTypePatchBody = z.object({ name: name.optional(), description: description.optional() })
   .refine(b => b.name !== undefined || b.description !== undefined, { message: 'nothing to change' })
+
+/** POST /api/device-types and PATCH /api/device-types/[id] */
+export interface DeviceTypeSavedDto { deviceType: DeviceTypeDto }
+
+/** Creating, proposing, changing, accepting or merging a symptom. */
+export interface SymptomSavedDto { symptom: SymptomDto }

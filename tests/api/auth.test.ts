@@ -1,5 +1,5 @@
 import { afterAll, describe, expect, it } from 'vitest'
-import { THROTTLE } from '../../server/services/accounts'
+import { THROTTLE } from '../../server/services/accounts/throttling'
 import { ApiClient, DEMO, DEMO_PASSWORD, signedIn } from '../helpers/api'
 import { clearLoginFailures, FACTORY_PASSWORD, makeUser } from '../helpers/db'
 

@@ -1,6 +1,6 @@
 import { z } from 'zod'
-import { DeviceTypePatchBody } from '#shared/types/vocabulary'
-import { toDeviceTypeDto, updateDeviceType } from '../../services/vocabulary'
+import { DeviceTypePatchBody, type DeviceTypeSavedDto } from '#shared/types/vocabulary'
+import { toDeviceTypeDto, updateDeviceType } from '../../services/vocabulary/device-types'
 
 const Params = z.object({ id: z.coerce.number().int().positive() })
 
@@ -8,5 +8,5 @@ export default defineEventHandler(async (event) => {
   const actor = await requireRole(event, 'editor')
   const { id } = await getValidatedRouterParams(event, parseWith(Params))
   const body = await readValidatedBody(event, parseWith(DeviceTypePatchBody))
-  return { deviceType: toDeviceTypeDto(await updateDeviceType(id, body, actor)) }
+  return { deviceType: toDeviceTypeDto(await updateDeviceType(id, body, actor)) } satisfies DeviceTypeSavedDto
 })

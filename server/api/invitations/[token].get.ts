@@ -1,5 +1,6 @@
 import { z } from 'zod'
-import { findInvitation } from '../../services/accounts'
+import type { InvitationViewDto } from '#shared/types/auth'
+import { findInvitation } from '../../services/accounts/invitations'
 
 const Params = z.object({ token: z.string().min(20).max(200) })
 
@@ -7,6 +8,6 @@ const Params = z.object({ token: z.string().min(20).max(200) })
 export default defineEventHandler(async (event) => {
   const { token } = await getValidatedRouterParams(event, parseWith(Params))
   const { status, user, invitation } = await findInvitation(token)
-  if (status !== 'valid' || !user || !invitation) return { status }
-  return { status, email: user.email, name: user.name, role: invitation.role, expiresAt: invitation.expiresAt.toISOString() }
+  if (status !== 'valid' || !user || !invitation) return { status } satisfies InvitationViewDto
+  return { status, email: user.email, name: user.name, role: invitation.role, expiresAt: invitation.expiresAt.toISOString() } satisfies InvitationViewDto
 })

@@ -1,5 +1,6 @@
 import { z } from 'zod'
-import { listPublished } from '../../services/procedures'
+import type { Paginated, ProcedureListItemDto } from '#shared/types/procedure-api'
+import { listPublished } from '../../services/procedures/published'
 
 const Query = z.object({
   deviceType: z.string().trim().max(80).optional(),
@@ -11,5 +12,5 @@ const Query = z.object({
 export default defineEventHandler(async (event) => {
   await requireUser(event)
   const query = await getValidatedQuery(event, parseWith(Query))
-  return await listPublished(query)
+  return await listPublished(query) satisfies Paginated<ProcedureListItemDto>
 })

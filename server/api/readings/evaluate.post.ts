@@ -1,5 +1,5 @@
 import { z } from 'zod'
-import { MeasurementSpec } from '#shared/types/measurement'
+import { MeasurementSpec, type ReadingEvaluationDto } from '#shared/types/measurement'
 import { evaluateReading } from '#shared/utils/readings'
 
 const Body = z.object({ value: z.string().max(60), spec: MeasurementSpec, failPointsTo: z.array(z.string().max(40)).max(20).optional() })
@@ -16,5 +16,5 @@ export default defineEventHandler(async (event) => {
     pass: result.pass,
     expected: result.expected,
     raises: result.raises,
-  }
+  } satisfies ReadingEvaluationDto
 })

@@ -1,7 +1,7 @@
 import { Readable } from 'node:stream'
 import { stringify } from 'csv-stringify'
 import { RecordListQuery } from '#shared/types/records'
-import { CSV_COLUMNS, recordCsvRows } from '../../services/records'
+import { CSV_COLUMNS, recordCsvRows } from '../../services/records/listing'
 
 // Streamed: rows are read a page at a time and written as they come.
 export default defineEventHandler(async (event) => {

@@ -1,10 +1,11 @@
-import { RecordCreateBody } from '#shared/types/records'
-import { startRecord, toRecordDto } from '../../services/records'
+import { RecordCreateBody, type RecordReadDto } from '#shared/types/records'
+import { toRecordDto } from '../../services/records/dto'
+import { startRecord } from '../../services/records/lifecycle'
 
 export default defineEventHandler(async (event) => {
   const actor = await requireUser(event)
   const body = await readValidatedBody(event, parseWith(RecordCreateBody))
   const record = await startRecord(body, actor)
   setResponseStatus(event, 201)
-  return { record: await toRecordDto(record, actor) }
+  return { record: await toRecordDto(record, actor) } satisfies RecordReadDto
 })

@@ -1,6 +1,7 @@
 import { z } from 'zod'
 import { CommentPatchBody } from '#shared/types/procedure'
-import { resolveComment } from '../../services/procedures'
+import type { ReviewCommentSavedDto } from '#shared/types/procedure-api'
+import { resolveComment } from '../../services/procedures/comments'
 
 const Params = z.object({ id: z.coerce.number().int().positive() })
 
@@ -8,5 +9,5 @@ export default defineEventHandler(async (event) => {
   const actor = await requireRole(event, 'author')
   const { id } = await getValidatedRouterParams(event, parseWith(Params))
   const { resolved } = await readValidatedBody(event, parseWith(CommentPatchBody))
-  return { comment: await resolveComment(id, resolved, actor) }
+  return { comment: await resolveComment(id, resolved, actor) } satisfies ReviewCommentSavedDto
 })

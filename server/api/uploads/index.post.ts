@@ -1,4 +1,5 @@
-import { MAX_IMAGE_BYTES, storeImage } from '../../services/uploads'
+import type { UploadedImageDto } from '#shared/types/procedure-api'
+import { MAX_IMAGE_BYTES, storeImage } from '../../services/uploads/images'
 
 // Any signed-in role: authors place photos in steps, technicians attach bench photos to records.
 export default defineEventHandler(async (event) => {
@@ -14,5 +15,5 @@ export default defineEventHandler(async (event) => {
   if (!file) throw createError({ statusCode: 400, message: 'Send the photo in the form field "file".', data: { fields: { file: 'missing' } } })
   const stored = await storeImage({ data: file.data, filename: file.filename }, actor, useObjectStore())
   setResponseStatus(event, 201)
-  return { id: stored.id, url: stored.url, thumbnailUrl: stored.thumbnailUrl, width: stored.width, height: stored.height }
+  return { id: stored.id, url: stored.url, thumbnailUrl: stored.thumbnailUrl, width: stored.width, height: stored.height } satisfies UploadedImageDto
 })

@@ -1,5 +1,5 @@
 import type { Transaction } from 'sequelize'
-import { AuditEvent } from '../db/models'
+import { AuditEvent } from '../../db/models'
 
 export interface AuditEntry {
   actorId: number | null

@@ -1,6 +1,6 @@
 import { QueryTypes } from 'sequelize'
-import type { DashboardDto, Outcome } from '../../shared/types/records'
-import { DeviceType, Procedure, Revision, Symptom, useDb } from '../db'
+import type { DashboardDto, Outcome } from '../../../shared/types/records'
+import { DeviceType, Procedure, Revision, Symptom, useDb } from '../../db'
 
 type Row = Record<string, string | number | null>
 

@@ -1,7 +1,8 @@
-import { Op, QueryTypes, type Transaction } from 'sequelize'
-import { rankCauses } from '../../shared/utils/evidence'
-import type { EvidenceCauseDto } from '../../shared/types/records'
-import { Procedure, Revision, contentPart, inTransaction, jsonArray, useDb } from '../db'
+import { Op } from 'sequelize'
+import { Procedure, Revision, contentPart, jsonArray, useDb } from '../../db'
+
+// The causes a diagnosis can confirm: those of the published, active procedures, read from the
+// parts of their content that evidence needs.
 
 export interface CandidateCause { procedureId: number, procedureSlug: string, causeKey: string, label: string, prior: number }
 
@@ -53,86 +54,4 @@ export async function liveProcedureFacts(slug: string): Promise<{ procedureId: n
   }) as unknown as (CandidateRow & { deviceType: string }) | null
   if (!row) return null
   return { procedureId: row.procedure.id, deviceType: row.deviceType, symptoms: jsonArray<string>(row.symptoms), causes: causesOf(row) }
-}
-
-interface CountRow { pid: number, ck: string, symptom: string, n: number }
-
-/**
- * Adds (+1) or removes (−1) one closed record's confirmed cause from the running counts, inside
- * the transaction that closes or amends it. Only records with a confirmed cause count.
- */
-export async function adjustCauseCounts(r: { deviceType: string, causeProcedureId: number | null, causeKey: string | null, symptoms: string[] }, delta: 1 | -1, transaction: Transaction) {
-  if (!r.causeProcedureId || !r.causeKey) return
-  const rows = ['', ...new Set(r.symptoms)].map(symptom => [r.deviceType, r.causeProcedureId, r.causeKey, symptom, Math.max(0, delta)])
-  await useDb().query(
-    `INSERT INTO cause_counts (device_type, cause_procedure_id, cause_key, symptom, n) VALUES ${rows.map(() => '(?, ?, ?, ?, ?)').join(', ')}
-     ON DUPLICATE KEY UPDATE n = GREATEST(0, CAST(n AS SIGNED) + ${delta})`,
-    { type: QueryTypes.INSERT, replacements: rows.flat(), transaction },
-  )
-}
-
-/** Recomputes the running counts from the records (after bulk loads; also a repair tool). */
-export async function rebuildCauseCounts(): Promise<void> {
-  await inTransaction(async (transaction) => {
-    await useDb().query('DELETE FROM cause_counts', { type: QueryTypes.DELETE, transaction })
-    const closed = 'r.status = \'closed\' AND r.cause_key IS NOT NULL'
-    await useDb().query(`INSERT INTO cause_counts (device_type, cause_procedure_id, cause_key, symptom, n)
-      SELECT r.device_type, r.cause_procedure_id, r.cause_key, '', COUNT(*) FROM repair_records r WHERE ${closed} GROUP BY 1, 2, 3
-      UNION ALL
-      SELECT r.device_type, r.cause_procedure_id, r.cause_key, s.symptom, COUNT(*) FROM repair_records r JOIN record_symptoms s ON s.record_id = r.id WHERE ${closed} GROUP BY 1, 2, 3, 4`, { type: QueryTypes.INSERT, transaction })
-  })
-}
-
-/**
- * Confirmed-cause counts for a device type in one aggregate query over the running counts: per
- * (procedure, cause) the closed records that confirmed it ('' row) and, of those, how many
- * listed each queried symptom.
- */
-export async function confirmedCounts(deviceType: string, symptoms: string[]) {
-  const rows = await useDb().query<CountRow>(
-    `SELECT cause_procedure_id AS pid, cause_key AS ck, symptom, SUM(n) AS n FROM cause_counts
-     WHERE device_type = :deviceType AND symptom IN (:symptoms)
-     GROUP BY cause_procedure_id, cause_key, symptom`,
-    { type: QueryTypes.SELECT, raw: true, replacements: { deviceType, symptoms: ['', ...symptoms] } },
-  )
-  const byCause = new Map<string, { confirmed: number, symptomHits: Record<string, number> }>()
-  let total = 0
-  for (const row of rows) {
-    const id = `${row.pid}:${row.ck}`
-    const entry = byCause.get(id) ?? { confirmed: 0, symptomHits: Object.fromEntries(symptoms.map(s => [s, 0])) }
-    if (row.symptom === '') {
-      entry.confirmed = Number(row.n)
-      total += Number(row.n)
-    }
-    else entry.symptomHits[row.symptom] = Number(row.n)
-    byCause.set(id, entry)
-  }
-  return { byCause, total }
-}
-
-/**
- * Causes ranked by naive Bayes over the team's confirmed records (formula in shared/utils/evidence.ts).
- * `candidates`, when the caller has them already (one procedure's causes), saves reading them again.
- */
-export async function evidenceFor(opts: { deviceType: string, symptoms: string[], procedureId?: number, candidates?: CandidateCause[] }): Promise<{ data: EvidenceCauseDto[], totalRecords: number }> {
-  const [candidates, counts] = await Promise.all([opts.candidates ?? candidateCauses(opts), confirmedCounts(opts.deviceType, opts.symptoms)])
-  const seen = new Set<string>()
-  const unique = candidates.filter(c => !seen.has(`${c.procedureId}:${c.causeKey}`) && seen.add(`${c.procedureId}:${c.causeKey}`))
-  if (!unique.length) return { data: [], totalRecords: counts.total }
-  const byId = new Map(unique.map(c => [causeId(c.procedureSlug, c.causeKey), c]))
-  const ranked = rankCauses({
-    causes: unique.map((c) => {
-      const found = counts.byCause.get(`${c.procedureId}:${c.causeKey}`)
-      return { id: causeId(c.procedureSlug, c.causeKey), label: c.label, prior: c.prior, confirmed: found?.confirmed ?? 0, symptomHits: found?.symptomHits ?? {} }
-    }),
-    symptoms: opts.symptoms,
-    totalRecords: counts.total,
-  })
-  return {
-    totalRecords: counts.total,
-    data: ranked.map((r) => {
-      const c = byId.get(r.id)!
-      return { id: r.id, procedureSlug: c.procedureSlug, causeKey: c.causeKey, label: r.label, posterior: r.posterior, confirmed: r.confirmed, of: r.of, support: r.support }
-    }),
-  }
 }

@@ -1,14 +1,6 @@
-import nodemailer, { type Transporter } from 'nodemailer'
+import type { Transporter } from 'nodemailer'
 import { Op, Transaction } from 'sequelize'
-import { inTransaction, OutboxMessage } from '../db'
-
-export interface SmtpConfig {
-  host: string
-  port: number
-  secure: boolean
-  user?: string
-  password?: string
-}
+import { inTransaction, OutboxMessage } from '../../db'
 
 export interface OutgoingMail {
   kind: string
@@ -33,21 +25,6 @@ export async function queueMail(mail: OutgoingMail | OutgoingMail[], transaction
     sentAt: null,
     lockedUntil: null,
   })), { transaction })
-}
-
-export function createTransport(cfg: SmtpConfig): Transporter {
-  const local = cfg.host === '127.0.0.1' || cfg.host === 'localhost'
-  return nodemailer.createTransport({
-    host: cfg.host,
-    port: Number(cfg.port),
-    secure: Boolean(cfg.secure),
-    // The local catcher speaks plain SMTP; a real relay negotiates STARTTLS as usual.
-    ignoreTLS: local && !cfg.secure,
-    auth: cfg.user ? { user: cfg.user, pass: cfg.password ?? '' } : undefined,
-    connectionTimeout: 3000,
-    greetingTimeout: 3000,
-    socketTimeout: 10_000,
-  })
 }
 
 /** Backoff after the n-th failed attempt: base·2^(n−1), capped at five minutes. */

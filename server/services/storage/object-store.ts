@@ -1,5 +1,6 @@
 import { DeleteObjectCommand, GetObjectCommand, HeadBucketCommand, PutObjectCommand, S3Client } from '@aws-sdk/client-s3'
 import type { Readable } from 'node:stream'
+import { DomainError } from '../errors'
 
 export interface S3Config {
   endpoint: string
@@ -61,7 +62,7 @@ export class ObjectStore {
     }
     catch (error) {
       const status = (error as { $metadata?: { httpStatusCode?: number } }).$metadata?.httpStatusCode
-      if (status === 404) throw Object.assign(new Error('object not found'), { statusCode: 404 })
+      if (status === 404) throw new DomainError('not_found', 'object not found')
       throw new ObjectStoreUnavailable(`object store did not answer: ${(error as Error).message}`)
     }
   }

@@ -1,10 +1,11 @@
 import { createHash, randomUUID } from 'node:crypto'
-import { createError } from 'h3'
 import sharp from 'sharp'
-import type { User } from '../db'
-import { Attachment } from '../db'
-import { ObjectStoreUnavailable, type ObjectStore } from './storage'
-import { toAttachmentDto } from './procedures'
+import type { AttachmentDto } from '../../../shared/types/procedure-api'
+import type { User } from '../../db'
+import { Attachment } from '../../db'
+import { invalid, tooLarge, unsupported } from '../errors'
+import { ObjectStoreUnavailable, type ObjectStore } from '../storage'
+import { toAttachmentDto } from './attachments'
 
 export const MAX_IMAGE_BYTES = 15 * 1024 * 1024
 export const THUMB_PX = 480
@@ -26,11 +27,11 @@ export function sniffImage(buf: Buffer): ImageType | null {
  * makes a thumbnail, writes both objects, and only then the row. A failed store leaves no row
  * and no object.
  */
-export async function storeImage(file: { data: Buffer, filename?: string }, actor: User, store: ObjectStore) {
-  if (!file.data.length) throw createError({ statusCode: 422, message: 'The file is empty.', data: { fields: { file: 'is empty' } } })
-  if (file.data.length > MAX_IMAGE_BYTES) throw createError({ statusCode: 413, message: `The file is larger than ${MAX_IMAGE_BYTES / 1024 / 1024} MB.`, data: { fields: { file: 'too large' } } })
+export async function storeImage(file: { data: Buffer, filename?: string }, actor: User, store: ObjectStore): Promise<AttachmentDto> {
+  if (!file.data.length) throw invalid('The file is empty.', { file: 'is empty' })
+  if (file.data.length > MAX_IMAGE_BYTES) throw tooLarge(`The file is larger than ${MAX_IMAGE_BYTES / 1024 / 1024} MB.`, { file: 'too large' })
   const type = sniffImage(file.data)
-  if (!type) throw createError({ statusCode: 415, message: 'Only JPEG, PNG and WebP photos can be uploaded (checked from the file\'s content).', data: { fields: { file: 'not a JPEG, PNG or WebP image' } } })
+  if (!type) throw unsupported('Only JPEG, PNG and WebP photos can be uploaded (checked from the file\'s content).', { file: 'not a JPEG, PNG or WebP image' })
   let full: { data: Buffer, info: { width: number, height: number } }
   let thumb: Buffer
   try {
@@ -40,7 +41,7 @@ export async function storeImage(file: { data: Buffer, filename?: string }, acto
     thumb = await base.clone().resize({ width: THUMB_PX, height: THUMB_PX, fit: 'inside', withoutEnlargement: true }).jpeg({ quality: 80 }).toBuffer()
   }
   catch {
-    throw createError({ statusCode: 422, message: 'The image could not be read: it is damaged or not really an image.', data: { fields: { file: 'unreadable image' } } })
+    throw invalid('The image could not be read: it is damaged or not really an image.', { file: 'unreadable image' })
   }
   const id = randomUUID()
   const objectKey = `images/${id}.${type === 'jpeg' ? 'jpg' : type}`

@@ -1,15 +1,11 @@
-import { createError } from 'h3'
-import { Op, UniqueConstraintError, type Transaction } from 'sequelize'
-import type { DeviceTypeDto, SymptomDto } from '../../shared/types/procedure-api'
-import { slugify } from '../../shared/utils/slug'
-import type { User } from '../db'
-import { DeviceType, Symptom, inTransaction } from '../db'
-import { recordAudit } from './audit'
-import { notifyVocabularyChanged } from './change-log'
-
-export function toDeviceTypeDto(d: DeviceType): DeviceTypeDto {
-  return { id: d.id, slug: d.slug, name: d.name, description: d.description }
-}
+import { QueryTypes, UniqueConstraintError } from 'sequelize'
+import type { CommonSymptomDto, SymptomDto } from '../../../shared/types/procedure-api'
+import type { User } from '../../db'
+import { Symptom, inTransaction, useDb } from '../../db'
+import { recordAudit } from '../audit/audit-log'
+import { notifyVocabularyChanged } from '../change-log/notify'
+import { conflict, invalid, notFound } from '../errors'
+import { assertNameFree, cleanSynonyms, duplicate, freeSlug } from './names'
 
 export function toSymptomDto(s: Symptom, slugById?: Map<number, string>): SymptomDto {
   return {
@@ -21,10 +17,6 @@ export function toSymptomDto(s: Symptom, slugById?: Map<number, string>): Sympto
     status: s.status,
     mergedInto: s.mergedIntoId ? slugById?.get(s.mergedIntoId) ?? null : null,
   }
-}
-
-export async function listDeviceTypes(): Promise<DeviceTypeDto[]> {
-  return (await DeviceType.findAll({ order: [['name', 'ASC']] })).map(toDeviceTypeDto)
 }
 
 export async function listSymptoms(): Promise<SymptomDto[]> {
@@ -45,33 +37,15 @@ export async function mergedSymptomSlugs(): Promise<Map<string, string>> {
   return new Map(merged.map(m => [m.slug, slugById.get(m.mergedIntoId!) ?? m.slug]))
 }
 
-/** A free slug for a name: the plain slug, else with -2, -3 … */
-async function freeSlug(model: typeof Symptom | typeof DeviceType, name: string, transaction?: Transaction): Promise<string> {
-  const base = slugify(name, 70)
-  const taken = new Set((await (model as typeof Symptom).findAll({ where: { slug: { [Op.like]: `${base}%` } }, attributes: ['slug'], transaction, raw: true })).map(r => r.slug))
-  if (!taken.has(base)) return base
-  for (let i = 2; ; i++) if (!taken.has(`${base}-${i}`)) return `${base}-${i}`
-}
-
-const duplicate = (what: string, name: string) => createError({
-  statusCode: 409,
-  message: `A ${what} named "${name}" already exists.`,
-  data: { fields: { name: 'already exists' } },
-})
-
-async function assertNameFree(model: typeof Symptom | typeof DeviceType, name: string, exceptId?: number) {
-  const clash = await (model as typeof Symptom).findOne({ where: { name, ...(exceptId ? { id: { [Op.ne]: exceptId } } : {}) } })
-  if (clash) throw duplicate(model === Symptom ? 'symptom' : 'device type', name)
-}
-
-function cleanSynonyms(list: string[], name: string): string[] {
-  const seen = new Set([name.toLowerCase()])
-  return list.map(s => s.trim()).filter((s) => {
-    const k = s.toLowerCase()
-    if (!s || seen.has(k)) return false
-    seen.add(k)
-    return true
-  })
+/** The team's most common accepted symptoms by repair records (the search page's empty state). */
+export async function commonSymptoms(): Promise<CommonSymptomDto[]> {
+  const rows = await useDb().query<{ slug: string, name: string, n: number }>(
+    `SELECT s.slug AS slug, s.name AS name, COUNT(rs.record_id) AS n
+     FROM symptoms s LEFT JOIN record_symptoms rs ON rs.symptom = s.slug
+     WHERE s.status = 'accepted' GROUP BY s.id ORDER BY n DESC, s.name ASC LIMIT 8`,
+    { type: QueryTypes.SELECT },
+  )
+  return rows.map(r => ({ slug: r.slug, name: r.name, records: Number(r.n) }))
 }
 
 export async function createSymptom(input: { name: string, synonyms: string[], description: string }, actor: User, status: 'accepted' | 'proposed'): Promise<Symptom> {
@@ -100,7 +74,7 @@ export async function createSymptom(input: { name: string, synonyms: string[], d
 
 export async function updateSymptom(id: number, patch: { name?: string, synonyms?: string[], description?: string }, actor: User): Promise<Symptom> {
   const symptom = await Symptom.findByPk(id)
-  if (!symptom) throw createError({ statusCode: 404, message: 'No such symptom.' })
+  if (!symptom) throw notFound('symptom')
   if (patch.name) await assertNameFree(Symptom, patch.name, id)
   const before = { name: symptom.name, synonyms: symptom.synonyms, description: symptom.description }
   await inTransaction(async (transaction) => {
@@ -116,8 +90,8 @@ export async function updateSymptom(id: number, patch: { name?: string, synonyms
 
 export async function acceptSymptom(id: number, actor: User): Promise<Symptom> {
   const symptom = await Symptom.findByPk(id)
-  if (!symptom) throw createError({ statusCode: 404, message: 'No such symptom.' })
-  if (symptom.status !== 'proposed') throw createError({ statusCode: 409, message: `The symptom is ${symptom.status}, not proposed.` })
+  if (!symptom) throw notFound('symptom')
+  if (symptom.status !== 'proposed') throw conflict(`The symptom is ${symptom.status}, not proposed.`)
   await inTransaction(async (transaction) => {
     await symptom.update({ status: 'accepted' }, { transaction })
     await recordAudit({ actorId: actor.id, action: 'symptom.accepted', entityType: 'symptom', entityId: id }, transaction)
@@ -133,11 +107,11 @@ export async function acceptSymptom(id: number, actor: User): Promise<Symptom> {
 export async function mergeSymptom(id: number, intoSlug: string, actor: User): Promise<Symptom> {
   return await inTransaction(async (transaction) => {
     const symptom = await Symptom.findByPk(id, { transaction, lock: transaction.LOCK.UPDATE })
-    if (!symptom) throw createError({ statusCode: 404, message: 'No such symptom.' })
-    if (symptom.status !== 'proposed') throw createError({ statusCode: 409, message: `Only a proposed symptom can be merged; this one is ${symptom.status}.` })
+    if (!symptom) throw notFound('symptom')
+    if (symptom.status !== 'proposed') throw conflict(`Only a proposed symptom can be merged; this one is ${symptom.status}.`)
     const target = await Symptom.findOne({ where: { slug: intoSlug }, transaction, lock: transaction.LOCK.UPDATE })
     if (!target || target.id === symptom.id || target.status !== 'accepted') {
-      throw createError({ statusCode: 422, message: `"${intoSlug}" is not an accepted symptom to merge into.`, data: { fields: { into: 'must be an accepted symptom' } } })
+      throw invalid(`"${intoSlug}" is not an accepted symptom to merge into.`, { into: 'must be an accepted symptom' })
     }
     await target.update({ synonyms: cleanSynonyms([...target.synonyms, symptom.name, ...symptom.synonyms], target.name) }, { transaction })
     await symptom.update({ status: 'merged', mergedIntoId: target.id }, { transaction })
@@ -145,33 +119,4 @@ export async function mergeSymptom(id: number, intoSlug: string, actor: User): P
     await notifyVocabularyChanged(transaction)
     return target
   })
-}
-
-export async function createDeviceType(input: { name: string, description: string }, actor: User): Promise<DeviceType> {
-  await assertNameFree(DeviceType, input.name)
-  try {
-    return await inTransaction(async (transaction) => {
-      const d = await DeviceType.create({ slug: await freeSlug(DeviceType, input.name, transaction), name: input.name, description: input.description }, { transaction })
-      await recordAudit({ actorId: actor.id, action: 'device_type.created', entityType: 'device_type', entityId: d.id, after: { name: d.name, slug: d.slug } }, transaction)
-      await notifyVocabularyChanged(transaction)
-      return d
-    })
-  }
-  catch (error) {
-    if (error instanceof UniqueConstraintError) throw duplicate('device type', input.name)
-    throw error
-  }
-}
-
-export async function updateDeviceType(id: number, patch: { name?: string, description?: string }, actor: User): Promise<DeviceType> {
-  const d = await DeviceType.findByPk(id)
-  if (!d) throw createError({ statusCode: 404, message: 'No such device type.' })
-  if (patch.name) await assertNameFree(DeviceType, patch.name, id)
-  await inTransaction(async (transaction) => {
-    const before = { name: d.name, description: d.description }
-    await d.update(patch, { transaction })
-    await recordAudit({ actorId: actor.id, action: 'device_type.updated', entityType: 'device_type', entityId: id, before, after: { name: d.name, description: d.description } }, transaction)
-    await notifyVocabularyChanged(transaction)
-  })
-  return d
 }

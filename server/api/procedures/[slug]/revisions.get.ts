@@ -1,10 +1,11 @@
 import { z } from 'zod'
-import { listRevisionsOf } from '../../../services/procedures'
+import type { ListDto, RevisionSummaryDto } from '#shared/types/procedure-api'
+import { listRevisionsOf } from '../../../services/procedures/revisions'
 
 const Params = z.object({ slug: z.string().min(1).max(100) })
 
 export default defineEventHandler(async (event) => {
   const user = await requireUser(event)
   const { slug } = await getValidatedRouterParams(event, parseWith(Params))
-  return { data: await listRevisionsOf(slug, user) }
+  return { data: await listRevisionsOf(slug, user) } satisfies ListDto<RevisionSummaryDto>
 })

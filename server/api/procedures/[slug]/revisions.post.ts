@@ -1,6 +1,7 @@
 import { z } from 'zod'
 import { StartDraftBody } from '#shared/types/procedure'
-import { startDraft } from '../../../services/procedures'
+import type { DraftSavedDto } from '#shared/types/procedure-api'
+import { startDraft } from '../../../services/procedures/revisions'
 
 const Params = z.object({ slug: z.string().min(1).max(100) })
 
@@ -10,5 +11,5 @@ export default defineEventHandler(async (event) => {
   const body = await readValidatedBody(event, parseWith(StartDraftBody))
   const rev = await startDraft(slug, actor, body.from)
   setResponseStatus(event, 201)
-  return { revision: { id: rev.id, version: rev.version } }
+  return { revision: { id: rev.id, version: rev.version } } satisfies DraftSavedDto
 })

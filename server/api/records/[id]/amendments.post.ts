@@ -1,6 +1,7 @@
 import { z } from 'zod'
-import { AmendmentBody } from '#shared/types/records'
-import { amendRecord, toRecordDto } from '../../../services/records'
+import { AmendmentBody, type RecordReadDto } from '#shared/types/records'
+import { toRecordDto } from '../../../services/records/dto'
+import { amendRecord } from '../../../services/records/lifecycle'
 
 const Params = z.object({ id: z.coerce.number().int().positive() })
 
@@ -10,5 +11,5 @@ export default defineEventHandler(async (event) => {
   const body = await readValidatedBody(event, parseWith(AmendmentBody))
   const record = await amendRecord(id, body, actor)
   setResponseStatus(event, 201)
-  return { record: await toRecordDto(record, actor) }
+  return { record: await toRecordDto(record, actor) } satisfies RecordReadDto
 })

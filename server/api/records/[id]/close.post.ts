@@ -1,6 +1,7 @@
 import { z } from 'zod'
-import { RecordCloseBody } from '#shared/types/records'
-import { closeRecord, toRecordDto } from '../../../services/records'
+import { RecordCloseBody, type RecordReadDto } from '#shared/types/records'
+import { toRecordDto } from '../../../services/records/dto'
+import { closeRecord } from '../../../services/records/lifecycle'
 
 const Params = z.object({ id: z.coerce.number().int().positive() })
 
@@ -8,5 +9,5 @@ export default defineEventHandler(async (event) => {
   const actor = await requireUser(event)
   const { id } = await getValidatedRouterParams(event, parseWith(Params))
   const body = await readValidatedBody(event, parseWith(RecordCloseBody))
-  return { record: await toRecordDto(await closeRecord(id, body, actor), actor) }
+  return { record: await toRecordDto(await closeRecord(id, body, actor), actor) } satisfies RecordReadDto
 })

@@ -1,6 +1,7 @@
 import { z } from 'zod'
 import { CommentBody } from '#shared/types/procedure'
-import { addComment } from '../../../services/procedures'
+import type { ReviewCommentSavedDto } from '#shared/types/procedure-api'
+import { addComment } from '../../../services/procedures/comments'
 
 const Params = z.object({ id: z.coerce.number().int().positive() })
 
@@ -10,5 +11,5 @@ export default defineEventHandler(async (event) => {
   const body = await readValidatedBody(event, parseWith(CommentBody))
   const comment = await addComment(id, body, actor)
   setResponseStatus(event, 201)
-  return { comment }
+  return { comment } satisfies ReviewCommentSavedDto
 })

@@ -1,5 +1,7 @@
 import { z } from 'zod'
-import { loadVisibleRevision, revisionDetail } from '../../../services/procedures'
+import type { RevisionDetailDto } from '#shared/types/procedure-api'
+import { loadVisibleRevision } from '../../../services/procedures/access'
+import { revisionDetail } from '../../../services/procedures/dto'
 
 const Params = z.object({ id: z.coerce.number().int().positive() })
 
@@ -7,5 +9,5 @@ export default defineEventHandler(async (event) => {
   const user = await requireUser(event)
   const { id } = await getValidatedRouterParams(event, parseWith(Params))
   const { rev, proc } = await loadVisibleRevision(id, user)
-  return await revisionDetail(rev, proc, user)
+  return await revisionDetail(rev, proc, user) satisfies RevisionDetailDto
 })

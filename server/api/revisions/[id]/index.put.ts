@@ -1,6 +1,7 @@
 import { z } from 'zod'
 import { RevisionSaveBody } from '#shared/types/procedure'
-import { saveDraft } from '../../../services/procedures'
+import type { DraftSavedDto } from '#shared/types/procedure-api'
+import { saveDraft } from '../../../services/procedures/revisions'
 
 const Params = z.object({ id: z.coerce.number().int().positive() })
 
@@ -9,5 +10,5 @@ export default defineEventHandler(async (event) => {
   const { id } = await getValidatedRouterParams(event, parseWith(Params))
   const body = await readValidatedBody(event, parseWith(RevisionSaveBody))
   const rev = await saveDraft(id, body, actor)
-  return { revision: { id: rev.id, version: rev.version } }
+  return { revision: { id: rev.id, version: rev.version } } satisfies DraftSavedDto
 })

@@ -1,6 +1,7 @@
 import { z } from 'zod'
 import { RequiredCommentBody } from '#shared/types/procedure'
-import { decideRevision } from '../../../services/procedures'
+import type { RevisionStateDto } from '#shared/types/procedure-api'
+import { decideRevision } from '../../../services/procedures/review'
 
 const Params = z.object({ id: z.coerce.number().int().positive() })
 
@@ -9,5 +10,5 @@ export default defineEventHandler(async (event) => {
   const { id } = await getValidatedRouterParams(event, parseWith(Params))
   const { comment } = await readValidatedBody(event, parseWith(RequiredCommentBody))
   const rev = await decideRevision(id, 'reject', comment, actor, useRuntimeConfig().appOrigin)
-  return { revision: { id: rev.id, number: rev.number, state: rev.state } }
+  return { revision: { id: rev.id, number: rev.number, state: rev.state } } satisfies RevisionStateDto
 })

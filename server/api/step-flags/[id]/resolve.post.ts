@@ -1,5 +1,6 @@
 import { z } from 'zod'
-import { resolveFlag } from '../../../services/records'
+import type { StepFlagResolvedDto } from '#shared/types/records'
+import { resolveFlag } from '../../../services/records/step-flags'
 
 const Params = z.object({ id: z.coerce.number().int().positive() })
 
@@ -7,5 +8,5 @@ export default defineEventHandler(async (event) => {
   const actor = await requireRole(event, 'author')
   const { id } = await getValidatedRouterParams(event, parseWith(Params))
   const flag = await resolveFlag(id, actor)
-  return { flag: { id: flag.id, resolved: true } }
+  return { flag: { id: flag.id, resolved: true } } satisfies StepFlagResolvedDto
 })
