@@ -1,5 +1,6 @@
 import createDOMPurify from 'dompurify'
 import { JSDOM } from 'jsdom'
+import { LRUCache } from 'lru-cache'
 import { createMarkdownRenderer, type Purifier } from '#shared/utils/markdown'
 
 // One jsdom window grows with use, so it is replaced after a number of renders.
@@ -8,11 +9,16 @@ let render: ((md: string) => string) | undefined
 let uses = 0
 
 // Rendering is a pure function of the text, and sanitising through jsdom costs milliseconds per
-// field: every read of a procedure would pay it again. Recently rendered texts are kept (least
-// recently used dropped first), bounded by their total length.
+// field: every read of a procedure would pay it again. Recently rendered texts are kept, bounded
+// by their total length; a text larger than a hundredth of that is rendered every time.
+// Emptied only by eviction (least recently used first): a rendered text never goes stale.
 const CACHE_CHARS = 8_000_000
-const cache = new Map<string, string>()
-let cachedChars = 0
+const cache = new LRUCache<string, string>({
+  max: 50_000,
+  maxSize: CACHE_CHARS,
+  maxEntrySize: CACHE_CHARS / 100,
+  sizeCalculation: (html, markdown) => markdown.length + html.length,
+})
 
 function renderUncached(markdown: string): string {
   if (!render || uses >= RENDERS_PER_WINDOW) {
@@ -27,20 +33,8 @@ function renderUncached(markdown: string): string {
 export function renderMarkdown(markdown: string): string {
   if (markdown === '') return renderUncached(markdown)
   const hit = cache.get(markdown)
-  if (hit !== undefined) {
-    cache.delete(markdown)
-    cache.set(markdown, hit)
-    return hit
-  }
+  if (hit !== undefined) return hit
   const html = renderUncached(markdown)
-  const size = markdown.length + html.length
-  if (size > CACHE_CHARS / 100) return html
   cache.set(markdown, html)
-  cachedChars += size
-  for (const [k, v] of cache) {
-    if (cachedChars <= CACHE_CHARS) break
-    cache.delete(k)
-    cachedChars -= k.length + v.length
-  }
   return html
 }

@@ -50,6 +50,7 @@
  * frequency.
  */
 import FFT from 'fft.js'
+import { LRUCache } from 'lru-cache'
 
 export type CutType = 'none' | 'leading_edge' | 'trailing_edge' | 'half_missing' | 'irregular'
 export type Polarity = 'positive' | 'negative'
@@ -265,11 +266,11 @@ function emptyShapes(): Record<HalfCycleShape, number> {
 }
 
 // Building an FFT's tables costs as much as a transform; captures reuse a handful of sizes.
-const fftCache = new Map<number, FFT>()
+// Emptied only by eviction (least recently used size first): a size's tables never change.
+const fftCache = new LRUCache<number, FFT>({ max: 8 })
 function fftOfSize(size: number): FFT {
   let fft = fftCache.get(size)
   if (fft === undefined) {
-    if (fftCache.size >= 8) fftCache.clear()
     fft = new FFT(size)
     fftCache.set(size, fft)
   }
