@@ -1,9 +1,9 @@
 import { randomBytes } from 'node:crypto'
 import { describe, expect, it } from 'vitest'
-import { Invitation, User } from '../../server/db'
+import { Invitation, OutboxMessage, User } from '../../server/db'
 import { ApiClient, DEMO, signedIn } from '../helpers/api'
 import { makeUser, testDb } from '../helpers/db'
-import { services, waitForMail } from '../helpers/stack'
+import { capturedMail, services, waitForMail, waitUntil } from '../helpers/stack'
 
 const linkIn = (text: string) => text.match(/https?:\/\/\S+\/invite\/([\w-]+)/)
 
@@ -56,16 +56,27 @@ describe('invitations', () => {
   it('keeps the invitation mail while SMTP is down and delivers it after recovery (outbox)', async () => {
     const admin = await signedIn(DEMO.admin)
     const email = `outage-${randomBytes(3).toString('hex')}@test.example`
+    testDb()
     await services.stopMail()
     try {
       expect((await admin.post('/api/users/invite', { email, role: 'technician' })).status).toBe(201)
-      await new Promise(r => setTimeout(r, 2500))
+      // The worker tried to send it and failed: the message waits in the outbox with the error.
+      await waitUntil('a failed send attempt', async () => {
+        const row = await OutboxMessage.findOne({ where: { toAddress: email } })
+        return !!row && row.attempts >= 1 && row.lastError !== null
+      })
+      const waiting = await OutboxMessage.findOne({ where: { toAddress: email } })
+      expect([waiting?.status, waiting?.sentAt]).toEqual(['pending', null])
+      expect(capturedMail().some(m => m.to.includes(email)), 'nothing reached the mail catcher while it was down').toBe(false)
     }
     finally {
       await services.startMail()
     }
     const mail = await waitForMail(m => m.to.includes(email), 30_000)
     expect(linkIn(mail.text)).toBeTruthy()
+    await waitUntil('the outbox row marked sent', async () => (await OutboxMessage.findOne({ where: { toAddress: email } }))?.status === 'sent')
+    const sent = await OutboxMessage.findOne({ where: { toAddress: email } })
+    expect(sent!.attempts, 'sent on a retry after the failed attempt').toBeGreaterThanOrEqual(2)
   })
 })
 

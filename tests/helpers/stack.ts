@@ -1,7 +1,8 @@
 import { existsSync, readdirSync, readFileSync } from 'node:fs'
 import { join } from 'node:path'
 import { setTimeout as sleep } from 'node:timers/promises'
-import { startDatabase, startMailCatcher, startObjectStore, stopDatabase, stopMailCatcher, stopObjectStore, testProfile } from '../../scripts/lib/stack'
+import { readPid } from '../../scripts/lib/proc'
+import { appFiles, startDatabase, startMailCatcher, startObjectStore, stopDatabase, stopMailCatcher, stopObjectStore, testProfile } from '../../scripts/lib/stack'
 
 /** Start and stop the test stack's services from a test (outage and recovery tests). */
 export const services = {
@@ -12,6 +13,8 @@ export const services = {
   startObjectStore: () => startObjectStore(testProfile()),
   stopMail: () => stopMailCatcher(testProfile()),
   startMail: () => startMailCatcher(testProfile()),
+  /** The process id of the app under test (to tell that it was not restarted). */
+  appPid: () => readPid(appFiles(testProfile()).pid),
 }
 
 export interface CapturedMessage { id: string, to: string[], subject: string, text: string, receivedAt: string }
