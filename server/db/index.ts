@@ -93,7 +93,7 @@ export function isDeadlock(error: unknown): boolean {
  * A managed transaction, re-run from the start when InnoDB rolls it back to break a deadlock
  * (the remedy the MySQL/MariaDB manuals give: be ready to re-issue a transaction that fails on
  * a deadlock). The callback must touch only the database: it may run up to `attempts` times.
- * Other errors, and a deadlock on the last attempt, go to the caller as before.
+ * Other errors, and a deadlock on the last attempt, go to the caller unchanged.
  */
 export async function inTransaction<T>(fn: (transaction: Transaction) => Promise<T>, options: TransactionOptions & { attempts?: number } = {}): Promise<T> {
   const { attempts = 4, ...txOptions } = options

@@ -1,12 +1,12 @@
 import type { PageSession } from '#shared/types/auth'
-import { toUserDto } from '../services/accounts'
+import { toUserDto } from '../services/accounts/users'
 
-// A page rendered on the server needs to know who is signed in before it renders. Without this,
-// the app asks through internal requests to /api/_auth/session and /api/me, each of which opens
-// the sealed cookie and reads the user row again. Here the user is checked once, exactly as an API
-// route checks it (requireUser: session version, active), and handed to the renderer on the
+// Who is signed in, for a page about to render on the server: checked once here, exactly as an
+// API route checks it (requireUser: session version, active), and handed to the renderer on the
 // event; app/plugins/session.server.ts puts it where useUserSession() and useAccount() read it.
-// Anyone not signed in, or whose session has ended, renders as signed out, as before.
+// Rendering then needs no internal request to /api/_auth/session or /api/me, each of which would
+// open the sealed cookie and read the user row again. Anyone not signed in, or whose session has
+// ended, renders as signed out.
 export default defineEventHandler(async (event) => {
   if (event.method !== 'GET' || event.path.startsWith('/api/') || event.path.startsWith('/_nuxt/')) return
   if (!getCookie(event, SESSION_COOKIE)) return

@@ -1,12 +1,12 @@
-// One runtime config for every request. Nitro gives each request (every server-rendered page and
-// every route it calls internally) a deep copy of the config with the NUXT_* environment applied
-// again, the first time anything asks for `useRuntimeConfig(event)` — which the page renderer and
-// the session helpers always do. That copy is meant for runtimes whose environment differs per
-// request; a Node server reads its environment once at start, so the copy is always identical to
-// the shared config, which Nitro has already built and frozen. Handing every request the shared
-// one took about a sixth of the CPU time of rendering the sign-in page (`npm run bench:http`).
-// Where a future Nitro stores the per-request config elsewhere, this does nothing and requests
-// simply get their copy again.
+// One runtime config for every request. Nitro otherwise gives each request (every server-rendered
+// page and every route it calls internally) its own deep copy of the config, with the NUXT_*
+// environment applied again, the first time anything asks for `useRuntimeConfig(event)`, which
+// the page renderer and the session helpers always do. That copy serves runtimes whose
+// environment differs per request; a Node server reads its environment once at start, so the copy
+// would equal the shared config that Nitro has already built and frozen. Making it costs about a
+// sixth of the CPU time of rendering the sign-in page (`npm run bench:http` measures the routes).
+// If Nitro keeps the per-request config somewhere else, this hook sets nothing and each request
+// gets its own copy.
 export default defineNitroPlugin((nitroApp) => {
   const shared = useRuntimeConfig()
   nitroApp.hooks.hook('request', (event) => {
