@@ -8,47 +8,106 @@ export type RevisionState = (typeof REVISION_STATES)[number]
 export const PROCEDURE_STATUSES = ['active', 'retired'] as const
 export type ProcedureStatus = (typeof PROCEDURE_STATUSES)[number]
 
-const slug = z.string().trim().min(1).max(80).regex(/^[a-z0-9]+(?:-[a-z0-9]+)*$/, 'must be a lowercase slug (a-z, 0-9, dashes)')
-const key = z.string().trim().min(1).max(40).regex(/^[a-z0-9][a-z0-9_-]*$/, 'must be a short key (a-z, 0-9, _ or -)')
+/** The prior a new cause starts with, and the one a draft's cause without a prior gets. */
+export const DEFAULT_PRIOR = 0.2
+
+const SLUG_RULE: TextRule = [/^[a-z0-9]+(?:-[a-z0-9]+)*$/, 'must be a lowercase slug (a-z, 0-9, dashes)']
+const KEY_RULE: TextRule = [/^[a-z0-9][a-z0-9_-]*$/, 'must be a short key (a-z, 0-9, _ or -)']
+type TextRule = [pattern: RegExp, message: string]
+
 const markdown = (max: number) => z.string().max(max, `must be at most ${max} characters`)
 
-export const CauseContent = z.object({
-  key,
-  name: z.string().trim().min(2).max(160),
-  detail: markdown(8000).default(''),
-  prior: z.number().finite().gt(0, 'prior must be above 0').max(1, 'prior must be at most 1'),
+/**
+ * How strictly a revision's fields are checked: `complete` when it goes to review (every field
+ * that a bench needs is there and well formed), `draft` while it is being written (sizes only,
+ * and what is missing takes its default), so autosave never refuses half-finished work.
+ */
+type Strictness = 'complete' | 'draft'
+type ByStrictness<S extends Strictness, Complete, Draft> = S extends 'complete' ? Complete : Draft
+
+/** The field kinds whose rules differ between a complete revision and a draft. */
+function fieldKinds<S extends Strictness>(strictness: S) {
+  const complete = strictness === 'complete'
+  const choose = <C, D>(c: () => C, d: () => D) => (complete ? c() : d()) as ByStrictness<S, C, D>
+  return {
+    choose,
+    /**
+     * Text a complete revision must hold: trimmed, `min` to `max` characters, matching `rule`
+     * when one is given. A draft may leave it empty.
+     */
+    needed(max: number, min = 1, rule?: TextRule, name?: string) {
+      const tooShort = name ? `${name} must be at least ${min} characters` : undefined
+      const tooLong = name ? `${name} must be at most ${max} characters` : undefined
+      return choose(
+        () => (rule ? z.string().trim().min(min, tooShort).max(max, tooLong).regex(...rule) : z.string().trim().min(min, tooShort).max(max, tooLong)),
+        () => z.string().trim().max(max, tooLong).default(''),
+      )
+    },
+    /** A list a complete revision must fill (`need` says so when it is empty); a draft may leave it empty. */
+    neededList<T extends z.core.SomeType>(item: T, max: number, need: string) {
+      return choose(() => z.array(item).min(1, need).max(max), () => z.array(item).max(max).default([] as z.output<T>[]))
+    },
+  }
+}
+
+/**
+ * A measurement while it is written: the quantity and the limits as in MeasurementSpec, the
+ * unit possibly empty, the tolerance not yet checked against its range.
+ */
+const DraftMeasurement = z.object({
+  ...MeasurementSpec.shape,
+  quantity: MeasurementSpec.shape.quantity.default('dc_voltage'),
+  unit: z.string().trim().max(8).default(''),
+  tolerancePct: z.number().finite().optional(),
 })
 
-export const StepContent = z.object({
-  key,
-  title: z.string().trim().min(2).max(160),
-  instruction: markdown(20000),
-  measurement: MeasurementSpec.optional(),
-  failPointsTo: z.array(key).max(20).optional(),
-  imageIds: z.array(z.number().int().positive()).max(12).optional(),
-})
-
-export const PartContent = z.object({
-  name: z.string().trim().min(1).max(160),
-  partNumber: z.string().trim().max(80).optional(),
-  substitutes: z.array(z.string().trim().min(1).max(160)).max(20).default([]),
-})
+/**
+ * Every field of a revision, once: its kind, its limits, what a complete revision needs of it,
+ * and the default a draft gets when it is missing.
+ */
+function revisionFields<S extends Strictness>(strictness: S) {
+  const f = fieldKinds(strictness)
+  const key = f.needed(40, 1, KEY_RULE)
+  const cause = z.object({
+    key,
+    name: f.needed(160, 2),
+    detail: markdown(8000).default(''),
+    prior: f.choose(
+      () => z.number().finite().gt(0, 'prior must be above 0').max(1, 'prior must be at most 1'),
+      () => z.number().finite().min(0).max(1).default(DEFAULT_PRIOR),
+    ),
+  })
+  const step = z.object({
+    key,
+    title: f.needed(160, 2),
+    instruction: f.choose(() => markdown(20000), () => markdown(20000).default('')),
+    measurement: f.choose(() => MeasurementSpec.optional(), () => DraftMeasurement.optional()),
+    failPointsTo: z.array(key).max(20).optional(),
+    imageIds: z.array(z.number().int().positive()).max(12).optional(),
+  })
+  const part = z.object({
+    name: f.needed(160),
+    partNumber: z.string().trim().max(80).optional(),
+    substitutes: z.array(f.needed(160)).max(20).default([]),
+  })
+  return {
+    title: f.needed(160, 3, undefined, 'title'),
+    deviceType: f.needed(80, 1, SLUG_RULE),
+    appliesTo: z.array(f.needed(120)).max(50).default([]),
+    summary: markdown(20000).default(''),
+    symptoms: f.neededList(f.needed(80, 1, SLUG_RULE), 20, 'name at least one symptom'),
+    hazards: z.array(z.enum(HAZARDS)).max(4).default([]),
+    causes: f.neededList(cause, 40, 'name at least one likely cause'),
+    steps: f.neededList(step, 80, 'add at least one test step'),
+    parts: z.array(part).max(60).default([]),
+    fix: markdown(20000).default(''),
+    verification: markdown(20000).default(''),
+  }
+}
 
 /** The structured body of a revision. The same schema validates the editor form and the server. */
 export const RevisionContent = z
-  .object({
-    title: z.string().trim().min(3, 'title must be at least 3 characters').max(160, 'title must be at most 160 characters'),
-    deviceType: slug,
-    appliesTo: z.array(z.string().trim().min(1).max(120)).max(50).default([]),
-    summary: markdown(20000).default(''),
-    symptoms: z.array(slug).min(1, 'name at least one symptom').max(20),
-    hazards: z.array(z.enum(HAZARDS)).max(4).default([]),
-    causes: z.array(CauseContent).min(1, 'name at least one likely cause').max(40),
-    steps: z.array(StepContent).min(1, 'add at least one test step').max(80),
-    parts: z.array(PartContent).max(60).default([]),
-    fix: markdown(20000).default(''),
-    verification: markdown(20000).default(''),
-  })
+  .object(revisionFields('complete'))
   .superRefine((c, ctx) => {
     const causeKeys = new Set<string>()
     c.causes.forEach((cause, i) => {
@@ -68,62 +127,37 @@ export const RevisionContent = z
   })
 export type RevisionContent = z.infer<typeof RevisionContent>
 export type RevisionContentInput = z.input<typeof RevisionContent>
+
+export const CauseContent = RevisionContent.shape.causes.element
+export const StepContent = RevisionContent.shape.steps.element
+export const PartContent = RevisionContent.shape.parts.unwrap().element
 export type CauseContent = z.infer<typeof CauseContent>
 export type StepContent = z.infer<typeof StepContent>
 
 /**
- * What a draft may hold while it is being written: the same fields, every one optional and
- * loosely checked (sizes only), so autosave never refuses half-finished work. Only the title is
- * required. Submission checks the full `RevisionContent`.
+ * What a draft may hold while it is being written: the same fields, every one loosely checked
+ * (sizes only) and filled with its default when missing, so autosave never refuses
+ * half-finished work. Submission checks the full `RevisionContent`.
  */
-export const DraftContent = z.object({
-  title: z.string().trim().min(3, 'title must be at least 3 characters').max(160, 'title must be at most 160 characters'),
-  deviceType: z.string().trim().max(80).default(''),
-  appliesTo: z.array(z.string().trim().max(120)).max(50).default([]),
-  summary: markdown(20000).default(''),
-  symptoms: z.array(z.string().trim().max(80)).max(20).default([]),
-  hazards: z.array(z.enum(HAZARDS)).max(4).default([]),
-  causes: z.array(z.object({
-    key: z.string().trim().max(40).default(''),
-    name: z.string().max(160).default(''),
-    detail: markdown(8000).default(''),
-    prior: z.number().finite().min(0).max(1).default(0.5),
-  })).max(40).default([]),
-  steps: z.array(z.object({
-    key: z.string().trim().max(40).default(''),
-    title: z.string().max(160).default(''),
-    instruction: markdown(20000).default(''),
-    measurement: z.object({
-      quantity: z.string().max(40).optional(),
-      unit: z.string().max(8).optional(),
-      min: z.number().finite().optional(),
-      max: z.number().finite().optional(),
-      nominal: z.number().finite().optional(),
-      tolerancePct: z.number().finite().optional(),
-      openExpected: z.boolean().optional(),
-    }).optional(),
-    failPointsTo: z.array(z.string().max(40)).max(20).optional(),
-    imageIds: z.array(z.number().int().positive()).max(12).optional(),
-  })).max(80).default([]),
-  parts: z.array(z.object({
-    name: z.string().max(160).default(''),
-    partNumber: z.string().max(80).optional(),
-    substitutes: z.array(z.string().max(160)).max(20).default([]),
-  })).max(60).default([]),
-  fix: markdown(20000).default(''),
-  verification: markdown(20000).default(''),
-})
+export const DraftContent = z.object(revisionFields('draft'))
 export type DraftContent = z.infer<typeof DraftContent>
+export type DraftCause = DraftContent['causes'][number]
+export type DraftStep = DraftContent['steps'][number]
+export type DraftPart = DraftContent['parts'][number]
+export type DraftMeasurement = z.infer<typeof DraftMeasurement>
+
+/** A saved draft has a title at least: it names the procedure in every list. */
+const SavedDraft = DraftContent.extend({ title: RevisionContent.shape.title })
 
 export const RevisionSaveBody = z.object({
   version: z.number().int().positive(),
-  content: DraftContent,
+  content: SavedDraft,
   changeNote: z.string().trim().max(500).optional(),
 })
-export const ProcedureCreateBody = z.object({ content: DraftContent, changeNote: z.string().trim().max(500).optional() })
+export const ProcedureCreateBody = z.object({ content: SavedDraft, changeNote: z.string().trim().max(500).optional() })
 export const StartDraftBody = z.object({ from: z.number().int().positive().optional() })
 export const DecisionBody = z.object({ comment: z.string().trim().max(5000).optional() })
 export const RequiredCommentBody = z.object({ comment: z.string().trim().min(3, 'say what needs to change (at least 3 characters)').max(5000) })
-export const CommentBody = z.object({ body: z.string().trim().min(1, 'is required').max(5000), stepKey: key.optional() })
+export const CommentBody = z.object({ body: z.string().trim().min(1, 'is required').max(5000), stepKey: StepContent.shape.key.optional() })
 export const CommentPatchBody = z.object({ resolved: z.boolean() })
 export const RetireBody = z.object({ reason: z.string().trim().min(3, 'give a reason (at least 3 characters)').max(500) })

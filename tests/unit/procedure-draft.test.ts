@@ -1,10 +1,11 @@
 import { createPinia, setActivePinia } from 'pinia'
 import { afterEach, beforeEach, describe, expect, it, vi } from 'vitest'
 import { nextTick } from 'vue'
-import { CauseContent, RevisionContent } from '#shared/types/procedure'
+import { CauseContent, DEFAULT_PRIOR, DraftContent, RevisionContent, RevisionSaveBody } from '#shared/types/procedure'
 import type { RevisionDetailDto } from '#shared/types/procedure-api'
 import { DEMO_PROCEDURES } from '~~/scripts/seed/demo-content'
-import { SAVE_DELAY_MS, draftPayload, keyFromName, normaliseDraft, useProcedureDraftStore } from '~~/app/stores/procedureDraft'
+import { SAVE_DELAY_MS, useProcedureDraftStore } from '~~/app/stores/procedureDraft'
+import { keyFromName, readDraft } from '~~/app/utils/procedureDraft'
 
 describe('keyFromName', () => {
   // Keys must pass the cause/step key rule of RevisionContent (a-z, 0-9, _ or -, at most 40).
@@ -30,15 +31,36 @@ describe('the editor keeps a complete revision as it was', () => {
   const revisions = DEMO_PROCEDURES.flatMap(p => p.revisions.map((r, i) => ({ label: `${p.slug} #${i + 1}`, content: r.content })))
   it.each(revisions)('$label', ({ content }) => {
     const before = RevisionContent.parse(content)
-    const after = RevisionContent.parse(draftPayload(normaliseDraft(structuredClone(content))))
+    const after = RevisionContent.parse(readDraft(structuredClone(content)))
     expect(after).toEqual(before)
   })
 
-  it('fills every list of an incomplete draft, so the form can bind to it', () => {
-    const d = normaliseDraft({ title: 'Half written', steps: [{ title: 'Look', measurement: { quantity: 'nonsense' } }] })
-    expect(d.causes).toEqual([])
+  it('fills every list of an incomplete draft from the schema\'s defaults, so the form can bind to it', () => {
+    const d = readDraft({ title: 'Half written', steps: [{ title: 'Look', measurement: { quantity: 'nonsense' } }], causes: [{ name: 'Q1' }] })
     expect(d.parts).toEqual([])
-    expect(d.steps[0]).toMatchObject({ key: '', instruction: '', failPointsTo: [], imageIds: [], measurement: { quantity: 'dc_voltage', unit: 'V' } })
+    expect(d.causes).toEqual([{ key: '', name: 'Q1', detail: '', prior: DEFAULT_PRIOR }])
+    // A value that does not fit its field gives way to the field's default; the rest is kept.
+    expect(d.steps[0]).toEqual({ key: '', title: 'Look', instruction: '', measurement: { quantity: 'dc_voltage', unit: '' } })
+  })
+
+  it.each([
+    ['not an object', 'a string', { title: '', causes: [] }],
+    ['a list that is not a list', { title: 'Kept', causes: 'none' }, { title: 'Kept', causes: [] }],
+    ['an unknown hazard among known ones', { hazards: ['mains', 'lava', 'heat'] }, { hazards: ['mains', 'heat'] }],
+    ['a prior that is not a number', { causes: [{ key: 'c1', prior: 'high' }] }, { causes: [{ key: 'c1', name: '', detail: '', prior: DEFAULT_PRIOR }] }],
+  ])('reads a stored body with %s', (_label, raw, expected) => {
+    expect(readDraft(raw)).toMatchObject(expected)
+  })
+
+  it('saves a draft only under a title, with the same rule a complete revision has', () => {
+    const saved = RevisionSaveBody.safeParse({ version: 1, content: { title: 'ab' } })
+    expect(saved.success).toBe(false)
+    expect(saved.error?.issues[0]).toMatchObject({ path: ['content', 'title'], message: 'title must be at least 3 characters' })
+    expect(RevisionSaveBody.safeParse({ version: 1, content: { title: 'Lamp flickers' } }).success).toBe(true)
+  })
+
+  it('states one default prior for a new cause and for a draft\'s cause saved without one', () => {
+    expect(DraftContent.parse({ causes: [{ key: 'c1' }] }).causes[0]!.prior).toBe(DEFAULT_PRIOR)
   })
 })
 
