@@ -1,22 +1,9 @@
 import type { Config } from 'tailwindcss'
+import { palette } from './app/utils/palette'
 
-// Benchlore's own palette: warm paper, dark ink, one petrol accent for actions and focus, and
-// signal colours kept for verdicts, states and hazards. Ink on paper and white on accent pass
-// WCAG AA (checked in tests/unit/theme.test.ts).
-export const palette = {
-  paper: { DEFAULT: '#f6f1e7', raised: '#fffdf8', sunk: '#ece4d4', rule: '#d6cab4' },
-  ink: { DEFAULT: '#1f1b16', muted: '#554c41', faint: '#6f6557' },
-  accent: { DEFAULT: '#0d5c68', hover: '#0a4953', soft: '#d7e9ea', ink: '#ffffff' },
-  verdict: {
-    'ok': '#17683a', 'ok-soft': '#dcefe1',
-    'fail': '#a3231b', 'fail-soft': '#f8e0dc',
-    'open': '#6a4a00', 'open-soft': '#f5e8c7',
-  },
-  state: {
-    draft: '#5b5247', review: '#7a4b00', live: '#17683a', returned: '#8a3b12', declined: '#a3231b', past: '#6f6557',
-  },
-  hazard: { DEFAULT: '#f9c80e', ink: '#111111', soft: '#fff4c2' },
-} as const
+// The palette lives in app/utils/palette.ts, where the app reads it too; exported here as well
+// for the waveform plot, which reads it from this file.
+export { palette }
 
 export default {
   content: ['./app/**/*.{vue,ts,js}', './shared/**/*.ts'],

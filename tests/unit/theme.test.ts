@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest'
-import { palette } from '../../tailwind.config'
+import { palette } from '../../app/utils/palette'
 
 // WCAG 2.2 §1.4.3 contrast (minimum): relative luminance and contrast ratio as defined in the
 // WCAG 2.x glossary; AA needs 4.5:1 for body text.
