@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest'
-import { palette } from '../../app/utils/palette'
+import { OUTCOME_COLOURS, badgeColours, palette } from '../../app/utils/palette'
 
 // WCAG 2.2 §1.4.3 contrast (minimum): relative luminance and contrast ratio as defined in the
 // WCAG 2.x glossary; AA needs 4.5:1 for body text.
@@ -29,5 +29,19 @@ describe('WCAG contrast of the theme', () => {
     ['hazard text', palette.hazard.ink, palette.hazard.DEFAULT],
   ])('%s passes AA (4.5:1)', (_, fg, bg) => {
     expect(contrast(fg, bg)).toBeGreaterThanOrEqual(4.5)
+  })
+
+  // Badges draw their words in the colour itself, over a tint of it (app/components/app/AppBadge.vue).
+  it.each([
+    ...Object.entries(palette.state).map(([token, colour]) => [`state "${token}" badge`, colour, 'tint'] as const),
+    ...Object.entries(OUTCOME_COLOURS).map(([outcome, colour]) => [`outcome "${outcome}" badge`, colour, 'tint'] as const),
+    ['on-the-bench badge', palette.accent.DEFAULT, 'tint'] as const,
+    ...(['ok', 'fail', 'open'] as const).flatMap(tone => [
+      [`verdict "${tone}" badge`, palette.verdict[tone], 'signal'] as const,
+      [`reference badge in "${tone}"`, palette.verdict[tone], 'signal-quiet'] as const,
+    ]),
+  ])('%s passes AA (4.5:1)', (_, colour, fill) => {
+    const c = badgeColours(colour, fill)
+    expect(contrast(c.color, c.backgroundColor)).toBeGreaterThanOrEqual(4.5)
   })
 })
