@@ -5,7 +5,7 @@ import { apiError, fakeFetch, mockEvidence, mockRecord } from './factories'
 import LikelyCauses from '~/components/records/LikelyCauses.vue'
 import ReadingInput from '~/components/records/ReadingInput.vue'
 import SaveConflict from '~/components/records/SaveConflict.vue'
-import SaveStatus from '~/components/records/SaveStatus.vue'
+import AppSaveStatus from '~/components/app/AppSaveStatus.vue'
 import { useBenchRecordStore } from '~/stores/benchRecord'
 import type { RecordDto } from '#shared/types/records'
 
@@ -147,8 +147,9 @@ describe('the bench record on the guided view', () => {
       await nextTick()
       expect(await bench.save()).toBe(false)
       expect(bench.failure).toBe(message)
-      const status = await mountSuspended(SaveStatus)
+      const status = await mountSuspended(AppSaveStatus, { props: { status: bench.status, savedAt: bench.savedAt, failure: bench.failure, testPrefix: 'record-save', conflictText: '' } })
       expect(status.get('[data-testid="record-save-status"]').attributes('data-state')).toBe('failed')
+      expect(status.get('[data-testid="record-save-status"]').text()).toContain(message)
       expect(status.find('[data-testid="record-save-retry"]').exists()).toBe(true)
     })
 
