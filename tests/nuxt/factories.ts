@@ -1,33 +1,20 @@
-import type { RevisionContent } from '#shared/types/procedure'
+import { makeContent } from '../helpers/content'
+import { RevisionContent } from '#shared/types/procedure'
 import type { RevisionDetailDto } from '#shared/types/procedure-api'
 import type { EvidenceCauseDto, RecordDto } from '#shared/types/records'
 
-// Invented bench data for component tests: a two-step guide on a trailing-edge dimmer.
+// Invented bench data for component tests: a three-step guide on a trailing-edge dimmer.
 
+/** The test procedure of tests/helpers/content.ts, with a third cause and a step that takes no reading. */
 export function mockGuideContent(overrides: Partial<RevisionContent> = {}): RevisionContent {
-  return {
-    title: 'Dimmer stays dark',
-    deviceType: 'rotary-led-dimmer-trailing-edge',
-    appliesTo: [],
-    summary: '',
-    symptoms: ['does-not-dim'],
-    hazards: ['mains'],
-    causes: [
-      { key: 'shorted-fet', name: 'Shorted switching MOSFET', detail: '', prior: 0.6 },
-      { key: 'open-pot', name: 'Open control potentiometer', detail: '', prior: 0.3 },
-      { key: 'dry-cap', name: 'Dried-out supply capacitor', detail: '', prior: 0.1 },
-    ],
-    steps: [
-      // A silicon body diode drops roughly 0.4–0.7 V forward (common practice for the diode-test range).
-      { key: 'fet-diode', title: 'Diode-test the MOSFET body diode', instruction: '', measurement: { quantity: 'diode_drop', unit: 'V', min: 0.4, max: 0.7 }, failPointsTo: ['shorted-fet'] },
-      { key: 'pot', title: 'Measure the potentiometer track', instruction: '', measurement: { quantity: 'resistance', unit: 'kΩ', nominal: 470, tolerancePct: 20 }, failPointsTo: ['open-pot'] },
-      { key: 'look', title: 'Look for bulging capacitors', instruction: '' },
-    ],
-    parts: [],
-    fix: '',
-    verification: '',
-    ...overrides,
-  }
+  const base = makeContent({ title: 'Dimmer stays dark', parts: [] })
+  const content = RevisionContent.parse({
+    ...base,
+    causes: [...base.causes ?? [], { key: 'dry-cap', name: 'Dried-out supply capacitor', detail: '', prior: 0.1 }],
+    steps: [...base.steps ?? [], { key: 'look', title: 'Look for bulging capacitors', instruction: '' }],
+  })
+  // Overrides may make it incomplete on purpose (a draft not ready for review).
+  return { ...content, ...overrides }
 }
 
 export function mockRecord(overrides: Partial<RecordDto> = {}): RecordDto {
