@@ -7,7 +7,7 @@ import {
   readDraft, removeDraftCause, renameDraftItem, visibleErrors as errorsToShow, type DraftItemKind, type KeyFollowers,
 } from '../utils/procedureDraft'
 import type { DraftContent } from '#shared/types/procedure'
-import type { AttachmentDto, RevisionDetailDto } from '#shared/types/procedure-api'
+import type { AttachmentDto, DraftSavedDto, RevisionDetailDto } from '#shared/types/procedure-api'
 
 export { fieldId }
 
@@ -45,8 +45,8 @@ export const useProcedureDraftStore = defineStore('procedureDraft', () => {
     snapshot: () => ({ content: cloneDraft(content.value), changeNote: changeNote.value }),
     enabled: () => revisionId.value !== null,
     async send(body, version) {
-      // The route answers the model's `version`, whose Sequelize brand Nitro's inferred type turns into an object.
-      const res = await $fetch<{ revision: { id: number, version: number } }>(`/api/revisions/${revisionId.value}`, { method: 'PUT', body: { version, ...(body as DraftVersion) } })
+      // The route's answer holds the model's branded `version`, which Nitro's inferred type turns into an object.
+      const res = await $fetch<DraftSavedDto>(`/api/revisions/${revisionId.value}`, { method: 'PUT', body: { version, ...(body as DraftVersion) } })
       return res.revision.version
     },
     restore(mine, theirs) {
