@@ -20,7 +20,7 @@ export default defineNuxtConfig({
   css: ['~/assets/css/main.css'],
   runtimeConfig: {
     appOrigin: 'http://127.0.0.1:3000',
-    db: { host: '127.0.0.1', port: 3307, name: 'benchlore', user: 'benchlore', password: '' },
+    db: { host: '127.0.0.1', port: 3307, name: 'benchlore', user: 'benchlore', password: '', hosts: '', syncWait: 0 },
     s3: { endpoint: '', region: 'us-east-1', bucket: 'benchlore', accessKeyId: '', secretAccessKey: '', forcePathStyle: true },
     smtp: { host: '127.0.0.1', port: 2525, secure: false, user: '', password: '' },
     mail: { from: 'Benchlore <benchlore@localhost>', captureDir: '', pollMs: 2000, retryBaseMs: 5000 },

@@ -7,9 +7,12 @@ const DB_DOWN = /Sequelize(Connection|ConnectionRefused|ConnectionAcquireTimeout
 function unavailableCause(error: unknown): string | null {
   let e: unknown = error
   for (let depth = 0; e && depth < 5; depth++) {
-    const err = e as { name?: string, message?: string, code?: string, cause?: unknown, original?: unknown }
+    const err = e as { name?: string, message?: string, code?: string, fatal?: boolean, sqlState?: string, cause?: unknown, original?: unknown }
     if (err.name === 'ObjectStoreUnavailable') return 'object store'
     if (DB_DOWN.test(`${err.name ?? ''} ${err.code ?? ''}`)) return 'database'
+    // The mariadb driver marks the loss of the connection itself as fatal (a server that went
+    // away mid-query: ECONNRESET, EPIPE…); the statement may succeed on a fresh connection.
+    if (err.fatal === true && typeof err.sqlState === 'string') return 'database'
     e = err.cause ?? err.original
   }
   return null

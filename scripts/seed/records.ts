@@ -78,8 +78,12 @@ export async function seedRecords(people: Record<DemoPerson, User>, count = 240)
     })
   }
   await useDb().transaction(async (transaction) => {
-    // Rows are built field by field above; bulkCreate's creation type does not follow the JSON getters.
-    const created = await RepairRecord.bulkCreate(rows as never[], { transaction })
+    // One INSERT per record: bulkCreate numbers the rows of a multi-row INSERT consecutively
+    // from the first id, which they are not where auto_increment_increment > 1 (a Galera
+    // cluster interleaves its nodes' ids). Rows are built field by field above; the creation
+    // type does not follow the JSON getters.
+    const created: RepairRecord[] = []
+    for (const row of rows) created.push(await RepairRecord.create(row as never, { transaction }))
     await RecordSymptom.bulkCreate(created.flatMap(r => r.symptoms.map(symptom => ({ recordId: r.id, symptom }))), { transaction })
   })
   await rebuildCauseCounts()

@@ -1,5 +1,7 @@
 import * as mariadb from 'mariadb'
 import { Sequelize, type Model, type ModelStatic, type Transaction, type TransactionOptions } from 'sequelize'
+import { unavailable } from '../services/errors'
+import { failoverDriver, parseDbHosts } from './cluster'
 import { initModels } from './models'
 
 export interface DbConfig {
@@ -8,6 +10,10 @@ export interface DbConfig {
   name: string
   user: string
   password: string
+  /** Several servers of one cluster, `host:port,…` in order of preference (NUXT_DB_HOSTS); replaces host and port. */
+  hosts?: string
+  /** wsrep_sync_wait for every session (NUXT_DB_SYNC_WAIT): 1 makes reads wait for writes other Galera nodes committed. */
+  syncWait?: number
 }
 
 let sequelize: Sequelize | undefined
@@ -20,16 +26,21 @@ export function dbConfigFromEnv(env: NodeJS.ProcessEnv = process.env): DbConfig 
     name: env.NUXT_DB_NAME ?? 'benchlore',
     user: env.NUXT_DB_USER ?? 'benchlore',
     password: env.NUXT_DB_PASSWORD ?? '',
+    hosts: env.NUXT_DB_HOSTS ?? '',
+    syncWait: Number(env.NUXT_DB_SYNC_WAIT ?? 0),
   }
 }
 
 export function createSequelize(cfg: DbConfig): Sequelize {
+  const nodes = cfg.hosts ? parseDbHosts(cfg.hosts, Number(cfg.port)) : []
+  const syncWait = Number(cfg.syncWait) || 0
   return new Sequelize(cfg.name, cfg.user, cfg.password, {
-    host: cfg.host,
-    port: Number(cfg.port),
+    host: nodes[0]?.host ?? cfg.host,
+    port: nodes[0]?.port ?? Number(cfg.port),
     dialect: 'mariadb',
     // Passed explicitly: the bundled server lacks the CJS entry Sequelize would require().
-    dialectModule: mariadb,
+    // With several nodes, each new connection goes to the first one that is up and in step.
+    dialectModule: nodes.length ? failoverDriver(nodes) : mariadb,
     logging: false,
     timezone: '+00:00',
     dialectOptions: {
@@ -39,6 +50,7 @@ export function createSequelize(cfg: DbConfig): Sequelize {
       bigIntAsNumber: true,
       insertIdAsNumber: true,
       decimalAsNumber: true,
+      ...(syncWait ? { initSql: `SET SESSION wsrep_sync_wait = ${syncWait}` } : {}),
     },
     // Fail fast while the database is away (the API answers 503) and recover on its own.
     // Enough connections for bursts of transactions that wait on one row lock (concurrent
@@ -92,8 +104,11 @@ export function isDeadlock(error: unknown): boolean {
 /**
  * A managed transaction, re-run from the start when InnoDB rolls it back to break a deadlock
  * (the remedy the MySQL/MariaDB manuals give: be ready to re-issue a transaction that fails on
- * a deadlock). The callback must touch only the database: it may run up to `attempts` times.
- * Other errors, and a deadlock on the last attempt, go to the caller unchanged.
+ * a deadlock). On a Galera cluster a transaction that lost a certification conflict with a
+ * commit on another node fails the same way, and is re-run the same way. The callback must
+ * touch only the database: it may run up to `attempts` times. Other errors go to the caller
+ * as they are; a deadlock on the last attempt goes as "unavailable" (a 503 to try again), with
+ * the deadlock attached.
  */
 export async function inTransaction<T>(fn: (transaction: Transaction) => Promise<T>, options: TransactionOptions & { attempts?: number } = {}): Promise<T> {
   const { attempts = 4, ...txOptions } = options
@@ -102,9 +117,13 @@ export async function inTransaction<T>(fn: (transaction: Transaction) => Promise
       return await useDb().transaction(txOptions, fn)
     }
     catch (error) {
-      if (attempt >= attempts || !isDeadlock(error)) throw error
-      // A short random pause, so the transactions that collided do not collide again in step.
-      await new Promise(resolve => setTimeout(resolve, 5 + Math.random() * 20 * attempt))
+      if (!isDeadlock(error)) throw error
+      // Kept as `original` (where isDeadlock looks), not `cause`: h3 would wrap the cause instead of the domain error.
+      if (attempt >= attempts) throw Object.assign(unavailable('The database is busy with conflicting changes; try again in a moment.'), { original: error })
+      // A random pause, growing with each attempt (about 40, 160, 640 ms), so the transactions
+      // that collided do not collide again in step, and a cluster busy replacing a lost node
+      // has a moment to settle.
+      await new Promise(resolve => setTimeout(resolve, 10 * 4 ** attempt * (0.5 + Math.random())))
     }
   }
 }

@@ -1,5 +1,6 @@
 import type { Sequelize } from 'sequelize'
 import { SequelizeStorage, Umzug } from 'umzug'
+import { withLease } from './lease'
 import { MIGRATIONS } from './migrations'
 
 export function createMigrator(sequelize: Sequelize) {
@@ -12,30 +13,13 @@ export function createMigrator(sequelize: Sequelize) {
 }
 
 /**
- * Applies pending migrations under a named MariaDB lock, so two processes started together
- * (two app instances, a deploy and a script) never run the same migration twice.
+ * Applies pending migrations under a lease row (server/db/lease.ts), so two processes started
+ * together (two app instances, a deploy and a script), on one server or on different nodes of a
+ * Galera cluster, never run the same migration twice; a crashed holder's lease expires.
  */
 export async function migrateUp(sequelize: Sequelize): Promise<string[]> {
-  // GET_LOCK belongs to one connection, so hold it on a connection of its own, outside the pool's rotation.
-  const manager = (sequelize as unknown as { connectionManager: LockConnectionManager }).connectionManager
-  const conn = await manager.getConnection({ type: 'write' })
-  try {
-    const [lock] = await conn.query('SELECT GET_LOCK(\'benchlore_migrations\', 60) AS got')
-    if (!lock || Number(lock.got) !== 1) throw new Error('could not take the migration lock within 60 s')
-    try {
-      const applied = await createMigrator(sequelize).up()
-      return applied.map(m => m.name)
-    }
-    finally {
-      await conn.query('SELECT RELEASE_LOCK(\'benchlore_migrations\')')
-    }
-  }
-  finally {
-    manager.releaseConnection(conn)
-  }
-}
-
-interface LockConnectionManager {
-  getConnection(opts: { type: 'read' | 'write' }): Promise<{ query: (sql: string) => Promise<Array<{ got?: number }>> }>
-  releaseConnection(conn: unknown): void
+  return await withLease(sequelize, 'migrations', async () => {
+    const applied = await createMigrator(sequelize).up()
+    return applied.map(m => m.name)
+  })
 }

@@ -4,5 +4,5 @@ import { initDatabase } from '../db'
 // here: `npm start` / `npm run db:migrate` apply them before the server starts.
 export default defineNitroPlugin(() => {
   const { db } = useRuntimeConfig()
-  initDatabase({ host: db.host, port: Number(db.port), name: db.name, user: db.user, password: db.password })
+  initDatabase({ host: db.host, port: Number(db.port), name: db.name, user: db.user, password: db.password, hosts: String(db.hosts ?? ''), syncWait: Number(db.syncWait) || 0 })
 })

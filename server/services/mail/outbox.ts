@@ -1,6 +1,7 @@
 import type { Transporter } from 'nodemailer'
 import { Op, Transaction } from 'sequelize'
 import { inTransaction, OutboxMessage } from '../../db'
+import { retryTransient } from '../../db/cluster'
 
 export interface OutgoingMail {
   kind: string
@@ -34,7 +35,10 @@ export function retryDelayMs(attempts: number, baseMs: number): number {
 
 /**
  * Sends what is due. Rows are claimed with SELECT … FOR UPDATE SKIP LOCKED and a lease, so
- * several app instances can run the worker without sending a message twice. The claim reads
+ * several app instances can run the worker without sending a message twice. The claim commits
+ * before anything is sent: on a Galera cluster, where row locks do not reach other nodes, two
+ * workers may both pick a row, and certification lets only the first claim commit (the other
+ * fails as a deadlock and is re-run by inTransaction, reading the row as claimed). The claim reads
  * in READ COMMITTED: under REPEATABLE READ its range scan would also lock the gaps of the
  * outbox's (status, next_attempt_at) index, and every transaction queueing mail meanwhile (a
  * submission holding its procedure's lock, say) would have to wait for the worker.
@@ -62,21 +66,30 @@ export async function deliverDueMail(transport: Transporter, opts: { from: strin
   let sent = 0
   let failed = 0
   for (const row of claimed) {
+    let sendError: unknown
     try {
       await transport.sendMail({ from: opts.from, to: row.toAddress, subject: row.subject, text: row.textBody, headers: { 'X-Benchlore-Kind': row.kind } })
-      // Static updates: the instances were loaded before the lease was written, so an instance
-      // update would not see lockedUntil as changed and would leave the lease in place.
-      await OutboxMessage.update({ status: 'sent', sentAt: new Date(), lockedUntil: null, attempts: row.attempts + 1, lastError: null }, { where: { id: row.id } })
-      sent++
     }
     catch (error) {
+      sendError = error ?? new Error('sending failed')
+    }
+    // The outcome is written even across a lost connection (retried on a fresh one, another
+    // node of a cluster): a sent message left unmarked would go out again when its lease ends,
+    // and a database error after sending must not count as a failed send.
+    // Static updates: the instances were loaded before the lease was written, so an instance
+    // update would not see lockedUntil as changed and would leave the lease in place.
+    if (sendError === undefined) {
+      await retryTransient(() => OutboxMessage.update({ status: 'sent', sentAt: new Date(), lockedUntil: null, attempts: row.attempts + 1, lastError: null }, { where: { id: row.id } }))
+      sent++
+    }
+    else {
       const attempts = row.attempts + 1
-      await OutboxMessage.update({
+      await retryTransient(() => OutboxMessage.update({
         attempts,
         lockedUntil: null,
-        lastError: String((error as Error).message ?? error).slice(0, 500),
+        lastError: String((sendError as Error).message ?? sendError).slice(0, 500),
         nextAttemptAt: new Date(Date.now() + retryDelayMs(attempts, opts.retryBaseMs)),
-      }, { where: { id: row.id } })
+      }, { where: { id: row.id } }))
       failed++
     }
   }
