@@ -1,10 +1,9 @@
 // `npm run test:cluster`: a cluster of its own (scripts/lib/cluster.ts, kind "test": data under
 // .data-cluster/test/, wiped at each run), then the tests in tests/cluster/ against it, then
 // everything stopped. Exit code = result. CI runs it after `npm test` (.ci/run).
-import { spawn } from 'node:child_process'
 import { existsSync, mkdirSync, readFileSync } from 'node:fs'
 import { join } from 'node:path'
-import { done, step } from './lib/proc'
+import { done, runVitest, step } from './lib/proc'
 import { FAST_MAIL_ENV, asStack, clusterDown, clusterEnv, clusterProfile, clusterUp, clusterWipe, proxyUrl } from './lib/cluster'
 import { ROOT, appFiles } from './lib/stack'
 
@@ -38,10 +37,7 @@ try {
     BENCHLORE_BASE_URL: proxyUrl(profile),
   }
   step('cluster tests…')
-  code = await new Promise<number>((resolve) => {
-    const child = spawn(join(ROOT, 'node_modules', '.bin', 'vitest'), ['run', '--config', 'vitest.cluster.config.ts', ...process.argv.slice(2)], { cwd: ROOT, env, stdio: 'inherit' })
-    child.on('exit', c => resolve(c ?? 1))
-  })
+  code = await runVitest(ROOT, ['run', '--config', 'vitest.cluster.config.ts', ...process.argv.slice(2)], env)
   if (code !== 0) printServerErrors()
 }
 catch (error) {

@@ -1,9 +1,9 @@
 // `npm test`: the same services as `npm start`, on their own ports and a throw-away data folder
 // (.data-test/, never .data/), a fresh database, then every vitest project. Exit code = result.
-import { spawn, spawnSync } from 'node:child_process'
+import { spawnSync } from 'node:child_process'
 import { existsSync, mkdirSync, readFileSync, rmSync } from 'node:fs'
 import { join } from 'node:path'
-import { done, fail, step } from './lib/proc'
+import { done, fail, runVitest, step } from './lib/proc'
 import {
   ROOT, appFiles, buildApp, buildIsStale, runScript, stackEnv, startApp, startDatabase, startMailCatcher, startObjectStore,
   stopApp, stopDatabase, stopMailCatcher, stopObjectStore, testProfile,
@@ -108,11 +108,7 @@ try {
     BENCHLORE_ARTIFACTS: join(ROOT, 'test-results'),
     ...TEST_APP_ENV,
   }
-  const args = ['run', ...process.argv.slice(2)]
-  code = await new Promise<number>((resolve) => {
-    const child = spawn(join(ROOT, 'node_modules', '.bin', 'vitest'), args, { cwd: ROOT, env, stdio: 'inherit' })
-    child.on('exit', c => resolve(c ?? 1))
-  })
+  code = await runVitest(ROOT, ['run', ...process.argv.slice(2)], env)
   if (code !== 0) printServerErrors()
 }
 catch (error) {

@@ -1,4 +1,5 @@
 import { spawn, type ChildProcess } from 'node:child_process'
+import { join } from 'node:path'
 import { closeSync, existsSync, openSync, readFileSync, rmSync, writeFileSync } from 'node:fs'
 import { createConnection } from 'node:net'
 import { setTimeout as sleep } from 'node:timers/promises'
@@ -97,4 +98,12 @@ export async function httpOk(url: string): Promise<boolean> {
   catch {
     return false
   }
+}
+
+/** Runs the project's vitest with these arguments in the foreground; resolves with its exit code. */
+export function runVitest(root: string, args: string[], env: NodeJS.ProcessEnv): Promise<number> {
+  return new Promise<number>((resolve) => {
+    const child = spawn(join(root, 'node_modules', '.bin', 'vitest'), args, { cwd: root, env, stdio: 'inherit' })
+    child.on('exit', c => resolve(c ?? 1))
+  })
 }
