@@ -15,11 +15,13 @@ import {
  * mail catcher shared by all. Three of them can run side by side: `npm run cluster`'s (local),
  * the cluster test's and the cluster benchmark's, each with its data under .data-cluster/<kind>/.
  *
- * Ports, all movable: BENCHLORE_CLUSTER_PORT (default 3400) is the local proxy, +1… the app
- * instances, +10 the object store, +11 the mail catcher; the test cluster adds 40 and the bench
- * cluster 80. BENCHLORE_CLUSTER_DB_PORT (3430) is the first database node's client port, one
- * per node after it (test and bench follow the local nodes). BENCHLORE_CLUSTER_GALERA_PORT (4600)
- * is the first node's replication port, ten apart per node, each using three in a row.
+ * Ports, all movable: BENCHLORE_CLUSTER_PORT (default 3460) is the local proxy, +1… the app
+ * instances, +10 the object store, +11 the mail catcher; the test cluster sits 20 below, the
+ * bench cluster 20 above (the defaults stay clear of the test and bench stacks of checkouts
+ * moved by BENCHLORE_PORT_OFFSET). BENCHLORE_CLUSTER_DB_PORT (3430) is the first database
+ * node's client port, one per node after it (test and bench follow the local nodes).
+ * BENCHLORE_CLUSTER_GALERA_PORT (4600) is the first node's replication port, ten apart per
+ * node, each using three in a row.
  */
 export type ClusterKind = 'local' | 'test' | 'bench'
 
@@ -43,7 +45,7 @@ export function clusterProfile(kind: ClusterKind, env: NodeJS.ProcessEnv = proce
   const k = { local: 0, test: 1, bench: 2 }[kind]
   const nodes = num(env.BENCHLORE_CLUSTER_NODES, 3, 1, 9)
   const apps = num(env.BENCHLORE_CLUSTER_APPS, 2, 1, 9)
-  const http = num(env.BENCHLORE_CLUSTER_PORT, 3400) + 40 * k
+  const http = num(env.BENCHLORE_CLUSTER_PORT, 3460) + { local: 0, test: -20, bench: 20 }[kind]
   const dbPort = num(env.BENCHLORE_CLUSTER_DB_PORT, 3430) + nodes * k
   const galeraPort = num(env.BENCHLORE_CLUSTER_GALERA_PORT, 4600) + 10 * nodes * k
   const dataDir = join(ROOT, '.data-cluster', kind)

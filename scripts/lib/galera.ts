@@ -4,7 +4,7 @@ import { join } from 'node:path'
 import { setTimeout as sleep } from 'node:timers/promises'
 import { ensureDebianPackages, hasCommand } from './debian'
 import { ensureMariadbInstalled, mariadbd } from './mariadb'
-import { done, fail, isAlive, portOpen, readPid, startDetached, step, stopPidFile } from './proc'
+import { done, isAlive, portOpen, readPid, startDetached, step, stopPidFile } from './proc'
 
 /**
  * A Galera cluster of private MariaDB servers on loopback: each node's data, socket and logs in
@@ -57,7 +57,7 @@ function serverUser(): { name: string, uid: number, gid: number } | null {
   if (process.getuid?.() !== 0) return null
   const r = spawnSync('id', ['-u', 'mysql'], { encoding: 'utf8' })
   const g = spawnSync('id', ['-g', 'mysql'], { encoding: 'utf8' })
-  if (r.status !== 0 || g.status !== 0) fail('the "mysql" system user (created by Debian\'s mariadb-server) is missing')
+  if (r.status !== 0 || g.status !== 0) throw new Error('the "mysql" system user (created by Debian\'s mariadb-server) is missing')
   return { name: 'mysql', uid: Number(r.stdout.trim()), gid: Number(g.stdout.trim()) }
 }
 
@@ -76,7 +76,7 @@ function prepareDir(node: GaleraNode) {
   chownTree(node.dir, user.uid, user.gid)
   const probe = spawnSync('runuser', ['-u', user.name, '--', 'test', '-w', nodeFiles(node).data])
   if (probe.status !== 0) {
-    fail(`the database nodes run as the "mysql" user, which cannot reach ${node.dir}; make its parent folders `
+    throw new Error(`the database nodes run as the "mysql" user, which cannot reach ${node.dir}; make its parent folders `
       + 'traversable (chmod o+x on each) or move the checkout to a folder other users can enter')
   }
 }
@@ -216,7 +216,7 @@ export async function startNode(cluster: GaleraCluster, node: GaleraNode, opts: 
   if (nodePid(node)) return
   const f = nodeFiles(node)
   for (const port of [node.port, node.galeraPort, node.galeraPort + 1, node.galeraPort + 2]) {
-    if (await portOpen(port)) fail(`port ${port} (database node ${node.name}) is already in use; choose other ports (BENCHLORE_CLUSTER_DB_PORT, BENCHLORE_CLUSTER_GALERA_PORT) or stop what uses it`)
+    if (await portOpen(port)) throw new Error(`port ${port} (database node ${node.name}) is already in use; choose other ports (BENCHLORE_CLUSTER_DB_PORT, BENCHLORE_CLUSTER_GALERA_PORT) or stop what uses it`)
   }
   const fresh = !hasData(node)
   if (fresh && opts.bootstrap) {

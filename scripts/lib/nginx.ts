@@ -2,7 +2,7 @@ import { execFileSync } from 'node:child_process'
 import { existsSync, mkdirSync, readdirSync, readFileSync, writeFileSync } from 'node:fs'
 import { join } from 'node:path'
 import { ensureDebianPackages, hasFile } from './debian'
-import { fail, portOpen, readPid, startDetached, stopPidFile, waitFor } from './proc'
+import { portOpen, readPid, startDetached, stopPidFile, waitFor } from './proc'
 
 const NGINX = ['/usr/sbin/nginx', '/usr/bin/nginx']
 const nginxBinary = () => NGINX.find(p => existsSync(p)) ?? 'nginx'
@@ -102,14 +102,14 @@ function writeConfig(p: LocalProxy) {
       return String((error as { stderr?: Buffer }).stderr ?? error)
     }
   })()
-  if (test) fail(`nginx rejected ${proxyFiles(p).conf}:\n${test}`)
+  if (test) throw new Error(`nginx rejected ${proxyFiles(p).conf}:\n${test}`)
 }
 
 export async function startProxy(p: LocalProxy): Promise<void> {
   ensureNginxInstalled()
   const f = proxyFiles(p)
   if (readPid(f.pid)) return
-  if (await portOpen(p.port)) fail(`port ${p.port} (the proxy) is already in use; choose another (BENCHLORE_CLUSTER_PORT) or stop what uses it`)
+  if (await portOpen(p.port)) throw new Error(`port ${p.port} (the proxy) is already in use; choose another (BENCHLORE_CLUSTER_PORT) or stop what uses it`)
   mkdirSync(p.dir, { recursive: true })
   writeConfig(p)
   // -e: the error log before the configuration is read, which would otherwise be the system's.
