@@ -1,6 +1,5 @@
 import { defineConfig } from 'vitest/config'
 import { BaseSequencer, type TestSpecification } from 'vitest/node'
-import main from './vitest.config.ts'
 
 /** Files by name: the correctness checks want the whole cluster, before the faults take parts of it down. */
 class ByName extends BaseSequencer {
@@ -12,7 +11,6 @@ class ByName extends BaseSequencer {
 // The cluster tests (`npm run test:cluster`, scripts/test-cluster.ts): one cluster, files in
 // order, each waiting on database nodes that leave and rejoin.
 export default defineConfig({
-  resolve: main.resolve,
   test: {
     name: 'cluster',
     include: ['tests/cluster/**/*.test.ts'],
