@@ -43,3 +43,9 @@ export function saveFailure<T>(error: unknown): { current: T } | { message: stri
     fields: apiErrorFields(error),
   }
 }
+
+/** The route's own name for what went wrong (`data.code`, e.g. TOO_FEW_CYCLES), when it gave one. */
+export function apiErrorCode(error: unknown): string | undefined {
+  const code = (error as { data?: { data?: { code?: unknown } } }).data?.data?.code
+  return typeof code === 'string' ? code : undefined
+}

@@ -20,12 +20,16 @@ export const ReferenceBody = z.object({
   kind: z.enum(REFERENCE_KINDS),
   note: z.string().trim().max(500).default(''),
 })
+export type ReferenceBody = z.output<typeof ReferenceBody>
 
 export const SeriesQuery = z.object({
   from: z.coerce.number().finite().optional(),
   to: z.coerce.number().finite().optional(),
   buckets: z.coerce.number().int().min(10).max(8000).default(2000),
 })
+
+/** The answer to an upload: the stored capture's id and what the analysis found. */
+export interface CaptureUploadedDto { id: number, features: WaveformFeatures }
 
 /** A plotted series: min/max per bucket (two points per bucket, in time order). */
 export interface SeriesDto { t: number[], v: number[], i?: number[], from: number, to: number }

@@ -1,4 +1,4 @@
-import { CaptureUploadFields } from '#shared/types/captures'
+import { CaptureUploadFields, type CaptureUploadedDto } from '#shared/types/captures'
 import { MAX_CAPTURE_BYTES, storeCapture } from '../../services/captures/store'
 
 export default defineEventHandler(async (event) => {
@@ -15,5 +15,6 @@ export default defineEventHandler(async (event) => {
   const fields = validateOr400(CaptureUploadFields, { label: text('label'), recordId: text('recordId') || undefined })
   const capture = await storeCapture({ data: file.data }, fields, actor, useObjectStore())
   setResponseStatus(event, 201)
-  return { id: capture.id, features: capture.features }
+  const answer: CaptureUploadedDto = { id: capture.id, features: capture.features }
+  return answer
 })

@@ -1,4 +1,5 @@
 import { DataTypes, Model, type CreationOptional, type InferAttributes, type InferCreationAttributes, type Sequelize } from 'sequelize'
+import type { CaptureDto, SeriesDto } from '../../../shared/types/captures'
 import type { WaveformFeatures } from '../../../shared/utils/waveform/analyse'
 
 const json = (field: string) => ({
@@ -23,8 +24,8 @@ export class Capture extends Model<InferAttributes<Capture>, InferCreationAttrib
   declare uploadedById: number
   declare features: WaveformFeatures
   /** The analysis details the capture page shows (cut, frequency, cut points, half-cycles…). */
-  declare analysis: Record<string, unknown>
-  declare overview: { t: number[], v: number[], i?: number[], from: number, to: number }
+  declare analysis: CaptureDto['analysis']
+  declare overview: SeriesDto
   declare createdAt: CreationOptional<Date>
 
   static initModel(sequelize: Sequelize) {

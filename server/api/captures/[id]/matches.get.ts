@@ -1,5 +1,6 @@
 import { z } from 'zod'
-import { findCapture, matchCapture } from '../../../services/captures/store'
+import { matchCapture } from '../../../services/captures/references'
+import { findCapture } from '../../../services/captures/store'
 
 const Params = z.object({ id: z.coerce.number().int().positive() })
 

@@ -1,6 +1,7 @@
 import { z } from 'zod'
 import { SeriesQuery } from '#shared/types/captures'
-import { captureSeries, findCapture } from '../../../services/captures/store'
+import { captureSeries } from '../../../services/captures/samples'
+import { findCapture } from '../../../services/captures/store'
 
 const Params = z.object({ id: z.coerce.number().int().positive() })
 

@@ -1,5 +1,5 @@
 import { z } from 'zod'
-import { listReferences } from '../../../services/captures/store'
+import { listReferences } from '../../../services/captures/references'
 
 const Params = z.object({ slug: z.string().min(1).max(100) })
 
