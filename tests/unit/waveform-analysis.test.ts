@@ -388,6 +388,61 @@ describe('analyseWaveform: dead units and bad captures', () => {
   })
 })
 
+describe('analyseWaveform: one polarity absent, single odd half-cycles, missing samples', () => {
+  it.each([0, 33, 101, 250])('fits the full supply when 0 V is the maximum (positive half absent, start phase %d°): supply RMS = 230 V, RMS = Vpk/2 (any circuits text)', (startPhaseDeg) => {
+    const r = analyse({ vrms: 230, cut: 'half_missing', faultPolarity: 'positive', sampleRateHz: 50_000, cycles: 10, startPhaseDeg })
+    expect(r.cut.halfFault).toEqual({ polarity: 'positive', mode: 'absent' })
+    // The supply is what the conducting half follows: √2 × 230 V peak (definition).
+    expect(Math.abs(r.features.supplyVrms! / 230 - 1)).toBeLessThan(1e-6)
+    expect(Math.abs(r.features.vrms / (230 * Math.SQRT2 / 2) - 1)).toBeLessThan(1e-6)
+  })
+
+  it('reports a single missing half-cycle in a full sine as an event at its zero crossing (50 Hz: half-cycle k starts at k × 10 ms, definition)', () => {
+    const capture = synthesiseCapture({ vrms: 230, sampleRateHz: 20_000, cycles: 10, noiseVrms: 1, seed: 21 })
+    // Half-cycle 13 (negative, 130–140 ms) never reaches the load.
+    for (let k = 0; k < capture.t.length; k++) if (capture.t[k]! >= 0.13 && capture.t[k]! < 0.14) capture.v[k] = 0
+    const r = analyseWaveform(capture)
+    expect(r.features.cutType).toBe('none')
+    expect(r.eventsTotal).toBe(1)
+    expect(r.events[0]).toMatchObject({ polarity: 'negative', kind: 'missing', shape: 'absent', usual: 'full' })
+    expect(r.events[0]!.t).toBeCloseTo(0.13, 5)
+    expect(r.warnings.some(w => /1 half-cycle unlike the others: negative, missing at 130\.0 ms/.test(w))).toBe(true)
+  })
+
+  it('reports a single uncontrolled half-cycle among trailing-edge ones (common practice: a switch that fails to open once)', () => {
+    const capture = synthesiseCapture({ vrms: 230, cut: 'trailing_edge', conductionAngleDeg: 90, sampleRateHz: 20_000, cycles: 10, seed: 22 })
+    const full = synthesiseCapture({ vrms: 230, sampleRateHz: 20_000, cycles: 10, seed: 22 })
+    // Positive half-cycle 4 (40–50 ms) runs the whole half-sine.
+    for (let k = 0; k < capture.t.length; k++) if (capture.t[k]! >= 0.04 && capture.t[k]! < 0.05) capture.v[k] = full.v[k]!
+    const r = analyseWaveform(capture)
+    expect(r.features.cutType).toBe('trailing_edge')
+    expect(r.events).toEqual([expect.objectContaining({ polarity: 'positive', kind: 'uncontrolled', usual: 'trailing_cut' })])
+    expect(r.events[0]!.t).toBeCloseTo(0.04, 5)
+  })
+
+  it('lists no events for a regular capture', () => {
+    expect(analyse({ vrms: 230, cut: 'leading_edge', firingAngleDeg: 60, sampleRateHz: 20_000, cycles: 10 }).eventsTotal).toBe(0)
+  })
+
+  it('keeps the sample rate and the RMS (Rashid ch. 11 closed form) when 1 % of the rows are missing, and says samples are missing rather than blaming the sampling', () => {
+    const whole = synthesiseCapture({ vrms: 230, cut: 'leading_edge', firingAngleDeg: 60, sampleRateHz: 20_000, cycles: 10, load: { resistanceOhm: 50 } })
+    const kept = Array.from({ length: whole.t.length }, (_, k) => k).filter(k => k % 97 !== 5)
+    const r = analyseWaveform({ t: Float64Array.from(kept, k => whole.t[k]!), v: Float64Array.from(kept, k => whole.v[k]!), i: Float64Array.from(kept, k => whole.i![k]!) })
+    expect(r.sampleRateHz).toBeCloseTo(20_000, 6)
+    const vpk = 230 * Math.SQRT2
+    expect(Math.abs(r.features.vrms / (vpk * leadingEdgeRatio(60)) - 1)).toBeLessThan(2e-3)
+    // P = V²/R for a resistive load (definition).
+    expect(Math.abs(r.features.current!.realPowerW / ((vpk * leadingEdgeRatio(60)) ** 2 / 50) - 1)).toBeLessThan(4e-3)
+    expect(r.warnings.some(w => /^42 samples missing from the time axis \(42 gaps/.test(w))).toBe(true)
+    expect(r.warnings.some(w => /sampling interval varies/.test(w))).toBe(false)
+  })
+
+  it('names what to change in the capture when it refuses one', () => {
+    expect(() => analyse({ cycles: 1.2 })).toThrowError(/capture a longer stretch/)
+    expect(() => analyse({ sampleRateHz: 500, cycles: 10 })).toThrowError(/capture again with a higher sample rate/)
+  })
+})
+
 describe('analyseWaveform: details for the plot', () => {
   it('lists half-cycles in order, alternating polarity, bounded by the zero crossings', () => {
     const r = analyse({ cut: 'leading_edge', firingAngleDeg: 45, sampleRateHz: 20_000, cycles: 6.3, startPhaseDeg: 200 })

@@ -21,7 +21,7 @@
  * interference on a dead output). A constant 48 V is no dead load: it fails with no mains
  * frequency.
  */
-import { classifyCut, emptyShapes, polarityStats, type PolarityAccumulator } from './cut'
+import { classifyCut, emptyShapes, halfCycleEvents, polarityStats, type PolarityAccumulator } from './cut'
 import { analyseHarmonics } from './harmonics'
 import { checkSamples, findCrossings, fitCrossings, measureLevels, type EventFit, type Levels } from './levels'
 import { clamp, DEG, median } from './math'
@@ -29,7 +29,7 @@ import { segmentHalfCycles, SHAPE_LEADING, SHAPE_TRAILING, type Segmentation } f
 import { fitSupply, type SupplyFit } from './supply'
 import {
   DEAD_BELOW_V, DEFAULT_MAX_HARMONIC, HALF_CYCLE_SHAPES, MIN_SAMPLE_RATE_HZ, NOISE_ONLY_BELOW_VRMS, WaveformError,
-  type AnalyseOptions, type CaptureSamples, type HalfCycleDetail, type PolarityStats, type WaveformAnalysis, type WaveformFeatures,
+  type AnalyseOptions, type CaptureSamples, type HalfCycleDetail, type HalfCycleEvent, type PolarityStats, type WaveformAnalysis, type WaveformFeatures,
 } from './types'
 
 export * from './types'
@@ -43,6 +43,11 @@ interface Context {
   sampleRateHz: number
   dt: number
   evenGrid: boolean
+  /**
+   * Samples are missing from the grid: sums are averaged over the samples present rather than
+   * over the time they span, which would count each missing sample as 0 V.
+   */
+  byCount: boolean
   deadBelowV: number
   /** Largest robust excursion from 0 V. */
   peakAbs: number
@@ -57,18 +62,28 @@ function checkCapture(capture: CaptureSamples, options: AnalyseOptions, warnings
   if (t.length !== n || (i !== undefined && i.length !== n)) {
     throw new WaveformError('INVALID_INPUT', 'time, voltage and current channels must have the same number of samples')
   }
-  if (n < 3) throw new WaveformError('TOO_FEW_CYCLES', `the capture has only ${n} sample${n === 1 ? '' : 's'}; at least two mains cycles are needed`)
-  const { vmin, vmax, jitter, evenGrid } = checkSamples(t, v, i)
+  if (n < 3) throw new WaveformError('TOO_FEW_CYCLES', `the capture has only ${n} sample${n === 1 ? '' : 's'}; at least two mains cycles are needed`, 'export the whole record')
+  const { vmin, vmax, jitter, evenGrid, gaps } = checkSamples(t, v, i)
   const durationS = t[n - 1]! - t[0]!
-  const sampleRateHz = (n - 1) / durationS
+  const sampleRateHz = gaps !== null ? 1 / gaps.step : (n - 1) / durationS
   if (sampleRateHz < minRate) {
     throw new WaveformError(
       'SAMPLE_RATE_TOO_LOW',
       `the capture is sampled at ${Math.round(sampleRateHz)} S/s; at least ${minRate / 1000} kS/s is needed (40 samples per 50 Hz cycle, harmonics up to h 19)`,
+      'capture again with a higher sample rate or a longer record length',
     )
   }
-  if (!evenGrid && jitter > 0.01) warnings.push(`the sampling interval varies by up to ${(100 * jitter).toFixed(0)} %; RMS and power assume even sampling`)
-  return { capture, n, durationS, sampleRateHz, dt: 1 / sampleRateHz, evenGrid, deadBelowV: options.deadBelowV ?? DEAD_BELOW_V, vmin, vmax }
+  if (gaps !== null) {
+    const many = (count: number, what: string) => `${count} ${what}${count === 1 ? '' : 's'}`
+    warnings.push(
+      `${many(gaps.missing, 'sample')} missing from the time axis (${many(gaps.gaps, 'gap')}, the longest ${many(gaps.longest, 'sample')} after ${(gaps.longestAt * 1000).toFixed(2)} ms): `
+      + 'the figures are taken over the samples present',
+    )
+  }
+  else if (!evenGrid && jitter > 0.01) warnings.push(`the sampling interval varies by up to ${(100 * jitter).toFixed(0)} %; RMS and power assume even sampling`)
+  return {
+    capture, n, durationS, sampleRateHz, dt: 1 / sampleRateHz, evenGrid, byCount: gaps !== null, deadBelowV: options.deadBelowV ?? DEAD_BELOW_V, vmin, vmax,
+  }
 }
 
 /**
@@ -79,7 +94,7 @@ function deadIfQuiet(ctx: Context, error: WaveformError): WaveformAnalysis {
   const { v } = ctx.capture
   let sum2 = 0
   for (let k = 0; k < ctx.n; k++) sum2 += v[k]! * v[k]!
-  if (Math.sqrt(sum2 / ctx.n) < NOISE_ONLY_BELOW_VRMS) return deadResult(ctx.capture, ctx.sampleRateHz, ctx.durationS, ctx.peakAbs, ctx.deadBelowV, error.message)
+  if (Math.sqrt(sum2 / ctx.n) < NOISE_ONLY_BELOW_VRMS) return deadResult(ctx.capture, ctx.sampleRateHz, ctx.durationS, ctx.peakAbs, ctx.deadBelowV, error.reason)
   throw error
 }
 
@@ -98,11 +113,12 @@ function findMainsPeriod(ctx: Context, levels: Levels, options: AnalyseOptions):
   const crossings = fitCrossings([rising, falling], ctx.dt)
   if (crossings === null) {
     if (rising.length + falling.length === 0) {
-      return { dead: deadIfQuiet(ctx, new WaveformError('NO_MAINS_FREQUENCY', 'no mains frequency found: the voltage never crosses zero')) }
+      return { dead: deadIfQuiet(ctx, new WaveformError('NO_MAINS_FREQUENCY', 'no mains frequency found: the voltage never crosses zero', 'capture the mains voltage across the load')) }
     }
     throw new WaveformError(
       'TOO_FEW_CYCLES',
       `the capture spans about one mains cycle or less (${(ctx.durationS * 1000).toFixed(1)} ms); at least two whole cycles are needed`,
+      'capture a longer stretch (a slower timebase)',
     )
   }
   const roughHz = 1 / crossings.period
@@ -111,6 +127,7 @@ function findMainsPeriod(ctx: Context, levels: Levels, options: AnalyseOptions):
       dead: deadIfQuiet(ctx, new WaveformError(
         'NO_MAINS_FREQUENCY',
         `no mains frequency found: the waveform repeats at ${roughHz.toFixed(2)} Hz, outside the ${fLow}–${fHigh} Hz mains range`,
+        'capture the mains voltage across the load',
       )),
     }
   }
@@ -118,6 +135,7 @@ function findMainsPeriod(ctx: Context, levels: Levels, options: AnalyseOptions):
     throw new WaveformError(
       'TOO_FEW_CYCLES',
       `the capture holds ${((ctx.durationS + ctx.dt) / crossings.period).toFixed(2)} cycles at ${roughHz.toFixed(2)} Hz; at least two whole cycles are needed`,
+      'capture a longer stretch (a slower timebase)',
     )
   }
   return { crossings }
@@ -142,7 +160,7 @@ function fitMainsSupply(ctx: Context, levels: Levels, crossings: EventFit, prese
   const roughPeriod = crossings.period
   let fit = fitSupply(t, v, levels.baseline, present, t0, roughPeriod, ctx.evenGrid)
   if (fit === null) {
-    const error = new WaveformError('NO_MAINS_FREQUENCY', 'no mains frequency found: too little of the waveform follows a sine to lock onto the supply')
+    const error = new WaveformError('NO_MAINS_FREQUENCY', 'no mains frequency found: too little of the waveform follows a sine to lock onto the supply', 'capture the mains voltage across the load')
     // Crossings that disagree among themselves are noise; consistent ones are a real, if sparse, waveform.
     if (crossings.crossings < 0.8 * crossings.total) return { dead: deadIfQuiet(ctx, error) }
     throw error
@@ -182,6 +200,7 @@ function wholeCycleWindow(ctx: Context, seg: Segmentation, frequencyHz: number):
     throw new WaveformError(
       'TOO_FEW_CYCLES',
       `the capture holds ${cycles} whole mains cycle${cycles === 1 ? '' : 's'} at ${frequencyHz.toFixed(2)} Hz; at least two are needed`,
+      'capture a longer stretch (a slower timebase)',
     )
   }
   return { w0, w1: w0 + 2 * cycles, cycles }
@@ -199,7 +218,7 @@ interface WindowSums {
 }
 
 /** Sums over the whole-cycle window, and each polarity's half-cycles. */
-function sumWindow(seg: Segmentation, w0: number, w1: number, dt: number): WindowSums {
+function sumWindow(seg: Segmentation, w0: number, w1: number, dt: number, byCount: boolean): WindowSums {
   const sums: WindowSums = {
     count: 0,
     sumV: 0,
@@ -222,7 +241,7 @@ function sumWindow(seg: Segmentation, w0: number, w1: number, dt: number): Windo
       sums.sumVI += seg.vi[h]!
     }
     const p = sums.polarity[seg.positive[h] === 1 ? 0 : 1]
-    p.count += (seg.end[h]! - seg.start[h]!) / dt
+    p.count += byCount ? seg.count[h]! : (seg.end[h]! - seg.start[h]!) / dt
     p.sum2 += seg.sum2[h]!
     p.conduction.push(seg.conduction[h]!)
     const shape = seg.shape[h]!
@@ -234,7 +253,7 @@ function sumWindow(seg: Segmentation, w0: number, w1: number, dt: number): Windo
 }
 
 /** Every half-cycle (up to `maxDetails`) as the plot shows it. */
-function halfCycleDetails(seg: Segmentation, w0: number, w1: number, dt: number, maxDetails: number): HalfCycleDetail[] {
+function halfCycleDetails(seg: Segmentation, w0: number, w1: number, dt: number, byCount: boolean, maxDetails: number): HalfCycleDetail[] {
   const halfCycles: HalfCycleDetail[] = []
   for (let h = 0; h < seg.halves && halfCycles.length < maxDetails; h++) {
     const c = seg.count[h]!
@@ -244,7 +263,7 @@ function halfCycleDetails(seg: Segmentation, w0: number, w1: number, dt: number,
       start: seg.start[h]!,
       end: seg.end[h]!,
       inWindow: h >= w0 && h < w1,
-      rms: c > 0 ? Math.sqrt((seg.sum2[h]! * dt) / (seg.end[h]! - seg.start[h]!)) : 0,
+      rms: c > 0 ? Math.sqrt(byCount ? seg.sum2[h]! / c : (seg.sum2[h]! * dt) / (seg.end[h]! - seg.start[h]!)) : 0,
       peak: Math.abs(seg.max[h]!) >= Math.abs(seg.min[h]!) ? seg.max[h]! : seg.min[h]!,
       conductionDeg: seg.conduction[h]!,
       shape: HALF_CYCLE_SHAPES[seg.shape[h]!]!,
@@ -262,7 +281,7 @@ function halfCycleDetails(seg: Segmentation, w0: number, w1: number, dt: number,
  * carries ~0 V, so its sum is the same.
  */
 function windowFeatures(ctx: Context, seg: Segmentation, w0: number, w1: number, sums: WindowSums) {
-  const windowSpan = (seg.end[w1 - 1]! - seg.start[w0]!) / ctx.dt
+  const windowSpan = ctx.byCount ? sums.count : (seg.end[w1 - 1]! - seg.start[w0]!) / ctx.dt
   const [pos, neg] = sums.polarity
   return {
     windowSpan,
@@ -322,12 +341,15 @@ export function analyseWaveform(capture: CaptureSamples, options: AnalyseOptions
 
   const seg = segmentHalfCycles(t, v, i, fit, fit.baseline, crossings.reference, omega, ctx.evenGrid, options.maxCutPoints ?? 2000)
   const { w0, w1, cycles } = wholeCycleWindow(ctx, seg, frequencyHz)
-  const sums = sumWindow(seg, w0, w1, dt)
+  const sums = sumWindow(seg, w0, w1, dt, ctx.byCount)
   const { windowSpan, vrms, rmsPos, rmsNeg, positive, negative } = windowFeatures(ctx, seg, w0, w1, sums)
 
   const guardDeg = Math.asin(clamp(median(fit.guard) / fit.vpk, 0, 1)) * DEG
   let verdict = classifyCut(positive, negative, guardDeg)
   if (!followsSine) verdict = { type: 'irregular', confidence: clamp(0.5 + (fit.noiseV / fit.vpk - 0.2) / 0.4, 0.5, 1) }
+  // Where the half-cycles follow no pattern the verdict says so; events are the exceptions to one.
+  const events = verdict.type === 'irregular' ? { events: [], total: 0 } : halfCycleEvents(seg, w0, w1, positive, negative, options.maxEvents ?? 200)
+  if (events.total > 0) warnings.push(eventsWarning(events.events, events.total))
 
   const harmonics = analyseHarmonics(
     t, v, i, seg, w0, cycles, frequencyHz, sampleRateHz, options.maxHarmonic ?? DEFAULT_MAX_HARMONIC, options.maxHarmonicWindows ?? 15,
@@ -354,7 +376,7 @@ export function analyseWaveform(capture: CaptureSamples, options: AnalyseOptions
     if (current !== undefined) features.current = current
   }
 
-  const halfCycles = halfCycleDetails(seg, w0, w1, dt, options.maxHalfCycleDetails ?? 4000)
+  const halfCycles = halfCycleDetails(seg, w0, w1, dt, ctx.byCount, options.maxHalfCycleDetails ?? 4000)
   if (crossings.crossings < crossings.total) {
     warnings.push(`${crossings.total - crossings.crossings} of ${crossings.total} zero crossings did not fit the mains period and were ignored`)
   }
@@ -388,8 +410,19 @@ export function analyseWaveform(capture: CaptureSamples, options: AnalyseOptions
     halfCyclesTotal: seg.halves,
     cutPoints: seg.cutPoints,
     cutPointsTotal: seg.cutPointsTotal,
+    events: events.events,
+    eventsTotal: events.total,
     warnings,
   }
+}
+
+const EVENT_WORDS: Record<HalfCycleEvent['kind'], string> = { missing: 'missing', uncontrolled: 'uncontrolled (a full half-sine)', cut: 'cut', erratic: 'erratic' }
+
+/** "1 half-cycle unlike the others: negative, missing at 125.0 ms", naming at most three. */
+function eventsWarning(events: HalfCycleEvent[], total: number): string {
+  const named = events.slice(0, 3).map(e => `${e.polarity}, ${EVENT_WORDS[e.kind]} at ${(e.t * 1000).toFixed(1)} ms`)
+  const more = total > named.length ? `, and ${total - named.length} more` : ''
+  return `${total} half-cycle${total === 1 ? '' : 's'} unlike the others: ${named.join('; ')}${more}`
 }
 
 function deadResult(
@@ -449,6 +482,8 @@ function deadResult(
     halfCyclesTotal: 0,
     cutPoints: [],
     cutPointsTotal: 0,
+    events: [],
+    eventsTotal: 0,
     warnings: [
       noMains === null
         ? `no voltage at the load: the peak of ${peak.toFixed(2)} V is below ${deadBelowV} V`

@@ -1,6 +1,6 @@
 /** The kind of phase cut, judged from the shapes and conduction angles of the half-cycles. */
 import { clamp, median } from './math'
-import type { CutType, HalfCycleShape, Polarity, PolarityStats } from './types'
+import { HALF_CYCLE_SHAPES, type CutType, type HalfCycleEvent, type HalfCycleEventKind, type HalfCycleShape, type Polarity, type PolarityStats } from './types'
 
 export function emptyShapes(): Record<HalfCycleShape, number> {
   return { full: 0, leading_cut: 0, trailing_cut: 0, both_cut: 0, absent: 0, erratic: 0 }
@@ -70,4 +70,40 @@ export function classifyCut(pos: PolarityStats, neg: PolarityStats, guardDeg: nu
   for (const c of candidates) if (c.score > best.score) best = c
   if (best.score < 0.8) return { type: 'irregular', confidence: clamp(1 - best.score, 0.2, 1) }
   return { type: best.type, confidence: best.score * best.confidence, ...(best.halfFault ? { halfFault: best.halfFault } : {}) }
+}
+
+/** The shape most half-cycles of a polarity have (the first in HALF_CYCLE_SHAPES on a tie). */
+export function usualShape(stats: PolarityStats): HalfCycleShape {
+  let best: HalfCycleShape = HALF_CYCLE_SHAPES[0]!
+  for (const shape of HALF_CYCLE_SHAPES) if (stats.shapes[shape] > stats.shapes[best]) best = shape
+  return best
+}
+
+function eventKind(shape: HalfCycleShape, usual: HalfCycleShape): HalfCycleEventKind {
+  if (shape === 'absent') return 'missing'
+  if (shape === 'full') return 'uncontrolled'
+  return usual === 'full' ? 'cut' : 'erratic'
+}
+
+/**
+ * The half-cycles of the window [w0, w1) whose shape differs from the usual one of their
+ * polarity, at most `max` of them; `total` counts them all. A single dropped or uncontrolled
+ * half-cycle among good ones leaves the verdict standing (it takes 80 % to agree), so it is
+ * reported here instead of being lost.
+ */
+export function halfCycleEvents(
+  halves: { start: Float64Array, positive: Uint8Array, shape: Uint8Array }, w0: number, w1: number,
+  positive: PolarityStats, negative: PolarityStats, max: number,
+): { events: HalfCycleEvent[], total: number } {
+  const usual = { positive: usualShape(positive), negative: usualShape(negative) }
+  const events: HalfCycleEvent[] = []
+  let total = 0
+  for (let h = w0; h < w1; h++) {
+    const polarity: Polarity = halves.positive[h] === 1 ? 'positive' : 'negative'
+    const shape = HALF_CYCLE_SHAPES[halves.shape[h]!]!
+    if (shape === usual[polarity]) continue
+    total++
+    if (events.length < max) events.push({ t: halves.start[h]!, halfCycle: h, polarity, kind: eventKind(shape, usual[polarity]), shape, usual: usual[polarity] })
+  }
+  return { events, total }
 }

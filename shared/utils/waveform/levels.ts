@@ -28,6 +28,53 @@ export interface SampleCheck {
    * jitter is rounding in the exported time column (7 digits over 10 s is 1 µs).
    */
   evenGrid: boolean
+  /** Set when samples are missing from an otherwise even grid (rows the file left out). */
+  gaps: SampleGaps | null
+}
+
+export interface SampleGaps {
+  /** The grid's sampling interval. */
+  step: number
+  /** Samples missing from the grid, and in how many gaps. */
+  missing: number
+  gaps: number
+  /** The longest gap: missing samples, and the time of the last sample before it. */
+  longest: number
+  longestAt: number
+}
+
+/**
+ * Looks for an even grid with holes: every time stamp within a quarter step of start + m·step.
+ * The step is the median of (up to 4096) intervals, refined over the whole span. Null when the
+ * stamps follow no such grid (uneven sampling) or none is missing.
+ */
+function findGaps(t: Float64Array): SampleGaps | null {
+  const n = t.length
+  const stride = Math.max(1, Math.floor((n - 1) / 4096))
+  const intervals: number[] = []
+  for (let k = 1; k < n; k += stride) intervals.push(t[k]! - t[k - 1]!)
+  const t0 = t[0]!
+  const rough = median(intervals)
+  const span = Math.round((t[n - 1]! - t0) / rough)
+  if (!(rough > 0) || span <= n - 1) return null
+  const step = (t[n - 1]! - t0) / span
+  const gaps: SampleGaps = { step, missing: 0, gaps: 0, longest: 0, longestAt: t0 }
+  let previous = 0
+  for (let k = 1; k < n; k++) {
+    const m = Math.round((t[k]! - t0) / step)
+    if (m <= previous || Math.abs(t[k]! - t0 - m * step) > 0.25 * step) return null
+    const hole = m - previous - 1
+    if (hole > 0) {
+      gaps.missing += hole
+      gaps.gaps++
+      if (hole > gaps.longest) {
+        gaps.longest = hole
+        gaps.longestAt = t[k - 1]!
+      }
+    }
+    previous = m
+  }
+  return gaps.missing > 0 ? gaps : null
 }
 
 export function checkSamples(t: Float64Array, v: Float64Array, i: Float64Array | undefined): SampleCheck {
@@ -55,7 +102,10 @@ export function checkSamples(t: Float64Array, v: Float64Array, i: Float64Array |
     if (x > vmax) vmax = x
     if (i !== undefined && i[k]! - i[k]! !== 0) throw new WaveformError('INVALID_INPUT', `current sample ${k + 1} is not a finite number`)
   }
-  return { vmin, vmax, jitter: Math.max(dtMax - mean, mean - dtMin) / mean, evenGrid: gridDeviation < 0.25 * mean }
+  const evenGrid = gridDeviation < 0.25 * mean
+  // Intervals of two or more steps on an uneven grid are usually rows left out of the file.
+  const gaps = !evenGrid && dtMax > 1.5 * dtMin ? findGaps(t) : null
+  return { vmin, vmax, jitter: Math.max(dtMax - mean, mean - dtMin) / mean, evenGrid, gaps }
 }
 
 export interface Levels {
@@ -127,11 +177,15 @@ export function measureLevels(v: Float64Array, vmin: number, vmax: number): Leve
     while (hi < BINS - 1 && hist[hi + 1]! > hist[mode]! / 2) hi++
     const from = vmin + lo / scale
     const to = vmin + (hi + 1) / scale
+    // The top bin holds the maximum itself (the histogram put it there): when the off-state is
+    // the capture's highest level (one polarity absent, 0 V the maximum), its samples sit exactly
+    // on `to` and must count.
+    const top = hi === BINS - 1 ? vmax : Number.NEGATIVE_INFINITY
     let w = 0
     let s = 0
     for (let k = 0; k < n; k++) {
       const x = v[k]!
-      if (x >= from && x < to) {
+      if (x >= from && (x < to || x <= top)) {
         w++
         s += x
       }

@@ -80,6 +80,22 @@ export interface CutPoint {
   supplyV: number
 }
 
+/** How a half-cycle differs from the others of its polarity. */
+export type HalfCycleEventKind = 'missing' | 'uncontrolled' | 'cut' | 'erratic'
+
+/** A half-cycle unlike the others of its polarity: one dropped, one let through uncontrolled… */
+export interface HalfCycleEvent {
+  /** Start of the half-cycle (the supply's zero crossing), in seconds. */
+  t: number
+  /** Index into the capture's half-cycles. */
+  halfCycle: number
+  polarity: Polarity
+  kind: HalfCycleEventKind
+  shape: HalfCycleShape
+  /** The shape the other half-cycles of this polarity have. */
+  usual: HalfCycleShape
+}
+
 export interface HarmonicSpectrum {
   /** Peak amplitude of each harmonic, index = order (0 = DC magnitude). */
   amplitudes: number[]
@@ -150,6 +166,9 @@ export interface WaveformAnalysis {
   halfCyclesTotal: number
   cutPoints: CutPoint[]
   cutPointsTotal: number
+  /** Single half-cycles unlike the rest (in the whole-cycle window), in time order. */
+  events: HalfCycleEvent[]
+  eventsTotal: number
   warnings: string[]
 }
 
@@ -157,10 +176,17 @@ export type WaveformErrorCode = 'INVALID_INPUT' | 'TOO_FEW_CYCLES' | 'SAMPLE_RAT
 
 export class WaveformError extends Error {
   readonly code: WaveformErrorCode
-  constructor(code: WaveformErrorCode, message: string) {
-    super(message)
+  /** What is wrong with the capture, without the advice. */
+  readonly reason: string
+  /**
+   * @param remedy what to change in the capture or the export, added to the message after the
+   *   reason ("…; capture a longer stretch").
+   */
+  constructor(code: WaveformErrorCode, reason: string, remedy?: string) {
+    super(remedy ? `${reason}: ${remedy}` : reason)
     this.name = 'WaveformError'
     this.code = code
+    this.reason = reason
   }
 }
 
@@ -175,6 +201,8 @@ export interface AnalyseOptions {
   mainsRangeHz?: [number, number]
   maxHalfCycleDetails?: number
   maxCutPoints?: number
+  /** Most half-cycle events listed (default 200; all are counted). */
+  maxEvents?: number
   /** Most 200 ms harmonic windows combined (default 15, i.e. 3 s). */
   maxHarmonicWindows?: number
 }
