@@ -106,16 +106,33 @@ describe('parseCaptureCsv: header and unit rows (SI prefixes, BIPM SI Brochure 9
     expect(Array.from(r.i!)).toEqual([1, 2, 3])
   })
 
-  it('takes an unnamed third numeric column as current, by position', async () => {
-    const r = await parse('Time,CH1,CH2\n0,1,0.1\n0.001,2,0.2\n0.002,3,0.3\n')
+  it('asks which column is which when a channel has neither a unit nor a telling name, then reads the choice', async () => {
+    const text = 'Time,CH1,CH2\n0,1,0.1\n0.001,2,0.2\n0.002,3,0.3\n'
+    const e = await parseError(text)
+    expect(e.code).toBe('AMBIGUOUS_COLUMNS')
+    expect(e.message).toMatch(/does not say what "CH2" holds/)
+    expect(e.columns).toEqual([
+      { index: 0, name: 'Time', unit: null, quantity: 'time', asVoltage: false, asCurrent: false, sample: '0' },
+      { index: 1, name: 'CH1', unit: null, quantity: 'voltage', asVoltage: true, asCurrent: false, sample: '1' },
+      { index: 2, name: 'CH2', unit: null, quantity: 'unknown', asVoltage: true, asCurrent: true, sample: '0.1' },
+    ])
+    const r = await parse(text, { columns: { voltage: 1, current: 2 } })
     expect(r.meta.columns.current).toEqual({ index: 2, name: 'CH2' })
     expect(Array.from(r.i!)).toEqual([0.1, 0.2, 0.3])
   })
 
-  it('does not take a third column marked in volts for current', async () => {
-    const r = await parse('Time,CH1,CH2\ns,V,V\n0,1,5\n0.001,2,6\n0.002,3,7\n')
+  it('never takes a column in volts for the current: two voltage channels are a choice of which is the load', async () => {
+    const text = 'Time,CH1,CH2\ns,V,V\n0,1,5\n0.001,2,6\n0.002,3,7\n'
+    const e = await parseError(text)
+    expect(e.code).toBe('AMBIGUOUS_COLUMNS')
+    expect(e.columns!.filter(c => c.asCurrent)).toEqual([])
+    expect(e.columns!.filter(c => c.asVoltage).map(c => c.name)).toEqual(['CH1', 'CH2'])
+    const r = await parse(text, { columns: { voltage: 2, current: null } })
+    expect(Array.from(r.v)).toEqual([5, 6, 7])
     expect(r.i).toBeUndefined()
-    expect(r.meta.columns.current).toBeUndefined()
+    const wrong = await parseError(text, { columns: { voltage: 1, current: 2 } })
+    expect(wrong.code).toBe('BAD_COLUMN_CHOICE')
+    expect(wrong.field).toBe('currentColumn')
   })
 
   it('reads a file with no header at all: time, voltage, current by position', async () => {
@@ -143,7 +160,8 @@ describe('parseCaptureCsv: instrument exports', () => {
       '0.01,0.7,0.003',
       '0.02,0.8,0.004',
     ].join('\n')
-    const r = await parse(text)
+    // Two channels in the vertical unit: the technician says CH1 is the load voltage.
+    const r = await parse(text, { columns: { voltage: 1, current: null } })
     expect(r.meta.headerRows).toBe(9)
     expect(r.meta.units.time).toBe('ms')
     expect(Array.from(r.t)).toEqual([-0.00001, 0, 0.00001, 0.00002])
