@@ -49,3 +49,8 @@ export function apiErrorCode(error: unknown): string | undefined {
   const code = (error as { data?: { data?: { code?: unknown } } }).data?.data?.code
   return typeof code === 'string' ? code : undefined
 }
+
+/** Something else the route said about the error (`data.<key>`, e.g. the columns to choose from). */
+export function apiErrorDetail<T>(error: unknown, key: string): T | undefined {
+  return (error as { data?: { data?: Record<string, unknown> } }).data?.data?.[key] as T | undefined
+}

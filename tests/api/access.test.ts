@@ -63,6 +63,7 @@ export const ROUTE_ACCESS: Record<string, Access> = {
   'GET /api/search': 'technician',
   'GET /api/symptoms/common': 'technician',
   'POST /api/captures': 'technician',
+  'GET /api/captures': 'technician',
   'GET /api/captures/:id': 'technician',
   'GET /api/captures/:id/series': 'technician',
   'GET /api/captures/:id/matches': 'technician',

@@ -3,8 +3,9 @@ import { tmpdir } from 'node:os'
 import { join } from 'node:path'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { captureToCsv, synthesiseCapture, type SynthOptions } from '../../shared/utils/waveform/synth'
-import { DEMO, DEMO_PASSWORD } from '../helpers/api'
-import { BASE_URL, openBrowser, screenshot, signIn } from '../helpers/browser'
+import { DEMO, DEMO_PASSWORD, signedIn } from '../helpers/api'
+import { ARTIFACTS, BASE_URL, openBrowser, openHydrated, screenshot, signIn } from '../helpers/browser'
+import { writeExport } from '../helpers/exports'
 
 type Browser = Awaited<ReturnType<typeof openBrowser>>
 
@@ -84,6 +85,83 @@ describe('waveform captures in Chromium', () => {
     expect(await problem.textContent()).toMatch(/two/)
     expect(page.url()).toBe(`${BASE_URL}/captures`)
     await screenshot(page, 'capture-unreadable')
+  })
+
+  it('asks which column is the load voltage when the file has two voltage channels and a math channel, then analyses the choice', async () => {
+    const { page } = browser
+    const trailing = synthesiseCapture({ cut: 'trailing_edge', conductionAngleDeg: 100, frequencyHz: 50, sampleRateHz: 20_000, cycles: 10, vrms: 230, load: { resistanceOhm: 529 }, seed: 13 })
+    const supply = synthesiseCapture({ frequencyHz: 50, sampleRateHz: 20_000, cycles: 10, vrms: 230 })
+    const path = join(dir, 'two-channels.csv')
+    writeFileSync(path, writeExport(trailing, {
+      before: ['Record: bench 3', 'Sample interval: 50 us'],
+      header: ['Time (s)', 'CH1 (V)', 'CH2 (V)', 'MATH (W)'],
+      withCurrent: false,
+      extra: k => [String(+supply.v[k]!.toPrecision(7)), String(+(trailing.v[k]! * trailing.i![k]!).toPrecision(7))],
+    }))
+    await page.goto(`${BASE_URL}/captures`)
+    await page.locator('[data-testid="capture-upload-form"][data-ready="true"]').waitFor()
+    await page.getByTestId('capture-label').fill('Two channels: load and supply')
+    await page.getByTestId('capture-file').setInputFiles(path)
+    await page.getByTestId('capture-upload').click()
+    await page.getByTestId('column-choice').waitFor({ timeout: 20_000 })
+    expect(await page.getByTestId('capture-problem').getAttribute('data-code')).toBe('AMBIGUOUS_COLUMNS')
+    expect(await page.getByTestId('column-choice').textContent()).toContain('MATH (W)')
+    await screenshot(page, 'capture-column-choice')
+    await page.getByTestId('column-voltage-1').check()
+    await page.getByTestId('column-current-none').check()
+    await page.getByTestId('column-choice-submit').click()
+    await page.waitForURL(/\/captures\/\d+$/, { timeout: 30_000 })
+    expect(await page.getByTestId('feature-cut').textContent()).toMatch(/Trailing edge/)
+  })
+
+  it('lists the captures on file on the waveforms page, filtered by cut type', async () => {
+    const { page } = browser
+    await openHydrated(page, '/captures')
+    await page.getByTestId('capture-list').waitFor()
+    expect(await page.getByTestId('capture-list').locator('li').count()).toBeGreaterThan(0)
+    await page.getByTestId('capture-filter-cut').selectOption('half_missing')
+    await page.waitForURL(/cut=half_missing/)
+    await expect.poll(async () => {
+      const cuts = await page.locator('[data-testid="capture-list"] [data-testid="capture-glance"]').evaluateAll(els => els.map(e => e.getAttribute('data-cut')))
+      return cuts.length > 0 && cuts.every(c => c === 'half_missing')
+    }).toBe(true)
+    await openHydrated(page, '/captures')
+    await screenshot(page, 'captures-on-file-1280')
+  })
+
+  it('files a capture from a step of a repair record: the step shows its cut and figures, the record lists it', async () => {
+    const api = await signedIn(DEMO.technician)
+    const started = await api.post('/api/records', { procedureSlug: 'vr240-half-cycle-flicker', unit: { model: 'VR-240 rev C', serial: 'E2E-CAP', jobRef: 'E2E-CAPTURE' } })
+    expect(started.status).toBe(201)
+    const recordId = started.body.record.id as number
+    const { page } = browser
+    await openHydrated(page, `/records/${recordId}`)
+    const step = page.getByTestId('step-capture-capture')
+    await step.getByTestId('step-capture-toggle-capture').click()
+    await step.getByTestId('capture-file').setInputFiles(file('step-capture.csv', HALF_UNCONTROLLED))
+    await step.getByTestId('capture-upload').click()
+    const item = step.locator('[data-testid^="step-capture-item-"]')
+    await item.waitFor({ timeout: 30_000 })
+    expect(await item.getByTestId('capture-glance-cut').textContent()).toBe('One half-cycle wrong')
+    expect(await item.getByTestId('capture-glance').textContent()).toMatch(/90° conduction|180° \/ 90° conduction/)
+    await expect.poll(() => page.getByTestId('record-captures').textContent()).toContain('One half-cycle wrong')
+    await screenshot(page, 'record-with-capture-1280')
+    const phone = await openBrowser({ width: 360, height: 760 })
+    try {
+      await signIn(phone.page, DEMO.technician, DEMO_PASSWORD)
+      await openHydrated(phone.page, `/records/${recordId}`)
+      await phone.page.getByTestId('record-captures').waitFor()
+      expect(await phone.page.evaluate(() => document.documentElement.scrollWidth)).toBeLessThanOrEqual(360)
+      await screenshot(phone.page, 'record-with-capture-360')
+      await phone.page.getByTestId('step-capture-capture').screenshot({ path: join(ARTIFACTS, 'record-step-capture-360.png') })
+      await phone.page.getByTestId('record-captures').screenshot({ path: join(ARTIFACTS, 'record-captures-360.png') })
+      await openHydrated(phone.page, '/captures')
+      expect(await phone.page.evaluate(() => document.documentElement.scrollWidth)).toBeLessThanOrEqual(360)
+      await screenshot(phone.page, 'captures-on-file-360')
+    }
+    finally {
+      await phone.close()
+    }
   })
 
   it('works on a 360 px phone: the plot fits and the cut is named before the matches', async () => {

@@ -266,5 +266,5 @@ describe('any bytes at all: read, or refused with a reason (property, fast-check
       }
       return true
     }), { numRuns: 600, seed: 20250314 })
-  })
+  }, 120_000)
 })

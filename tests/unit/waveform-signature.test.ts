@@ -3,6 +3,7 @@ import { describe, expect, it } from 'vitest'
 import { analyseWaveform, type WaveformFeatures } from '../../shared/utils/waveform/analyse'
 import { synthesiseCapture, type SynthOptions } from '../../shared/utils/waveform/synth'
 import {
+  groupRanked,
   nearestNominalVrms,
   rankSignatures,
   SIGNATURE_COMPONENTS,
@@ -144,5 +145,20 @@ describe('signatureVector', () => {
     const stored: SignatureFeatures = { vrms: 115, asymmetry: 0, conductionAngleDeg: { positive: 90, negative: 90 }, cutType: 'trailing_edge', crestFactor: 2, thd: 0.64 }
     expect(signatureVector(stored)[11]).toBeCloseTo(0.5, 12)
     expect(signatureVector(stored, { nominalVrms: 120 })[11]).toBeCloseTo(115 / 120, 12)
+  })
+})
+
+describe('groupRanked: one entry per procedure, best reference first', () => {
+  it('keeps the rank order inside each group and orders groups by their best member', () => {
+    const ranked = [
+      { id: 1, procedure: 'b', distance: 0.1 },
+      { id: 2, procedure: 'a', distance: 0.2 },
+      { id: 3, procedure: 'b', distance: 0.3 },
+      { id: 4, procedure: 'c', distance: 0.4 },
+      { id: 5, procedure: 'a', distance: 0.5 },
+      { id: 6, procedure: 'b', distance: 0.6 },
+    ]
+    expect(groupRanked(ranked, m => m.procedure).map(g => g.map(m => m.id))).toEqual([[1, 3, 6], [2, 5], [4]])
+    expect(groupRanked([], () => 'x')).toEqual([])
   })
 })

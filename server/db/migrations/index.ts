@@ -5,6 +5,7 @@ import * as m0003 from './0003-change-log'
 import * as m0004 from './0004-repair-records'
 import * as m0005 from './0005-captures'
 import * as m0006 from './0006-cause-counts'
+import * as m0007 from './0007-capture-job'
 
 export interface Migration {
   name: string
@@ -20,4 +21,5 @@ export const MIGRATIONS: Migration[] = [
   { name: '0004-repair-records', ...m0004 },
   { name: '0005-captures', ...m0005 },
   { name: '0006-cause-counts', ...m0006 },
+  { name: '0007-capture-job', ...m0007 },
 ]

@@ -1,6 +1,6 @@
 import { DataTypes, Model, type CreationOptional, type InferAttributes, type InferCreationAttributes, type Sequelize } from 'sequelize'
 import type { CaptureDto, SeriesDto } from '../../../shared/types/captures'
-import type { WaveformFeatures } from '../../../shared/utils/waveform/analyse'
+import type { CutType, WaveformFeatures } from '../../../shared/utils/waveform/analyse'
 
 const json = (field: string) => ({
   type: DataTypes.JSON,
@@ -21,6 +21,10 @@ export class Capture extends Model<InferAttributes<Capture>, InferCreationAttrib
   declare samplesKey: string
   declare label: CreationOptional<string>
   declare recordId: number | null
+  /** The step of the record's procedure the capture was taken for. */
+  declare stepKey: string | null
+  /** features.cutType, kept in a column of its own for the list's filter. */
+  declare cutType: CutType
   declare uploadedById: number
   declare features: WaveformFeatures
   /** The analysis details the capture page shows (cut, frequency, cut points, half-cycles…). */
@@ -35,6 +39,8 @@ export class Capture extends Model<InferAttributes<Capture>, InferCreationAttrib
       samplesKey: { type: DataTypes.STRING(200), allowNull: false },
       label: { type: DataTypes.STRING(160), allowNull: false, defaultValue: '' },
       recordId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: true },
+      stepKey: { type: DataTypes.STRING(40), allowNull: true },
+      cutType: { type: DataTypes.STRING(20), allowNull: true },
       uploadedById: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
       features: json('features'),
       analysis: json('analysis'),

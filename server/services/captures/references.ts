@@ -1,5 +1,5 @@
-import type { ReferenceBody, ReferenceDto, SignatureMatchDto } from '../../../shared/types/captures'
-import { rankSignatures } from '../../../shared/utils/waveform/signature'
+import type { MatchGroupDto, ReferenceBody, ReferenceDto, SignatureMatchDto } from '../../../shared/types/captures'
+import { groupRanked, rankSignatures } from '../../../shared/utils/waveform/signature'
 import { Capture, Procedure, Revision, SignatureReference, User } from '../../db'
 import { invalid, notFound } from '../errors'
 
@@ -35,8 +35,13 @@ export async function listReferences(procedureSlug: string): Promise<ReferenceDt
   return await referenceDtos(await SignatureReference.findAll({ where: { procedureId: proc.id }, order: [['id', 'ASC']] }))
 }
 
-/** Reference signatures of live procedures ranked by distance to this capture (shared/utils/waveform/signature.ts). */
-export async function matchCapture(capture: Capture): Promise<SignatureMatchDto[]> {
+const MAX_GROUPS = 20
+
+/**
+ * Reference signatures of live procedures ranked by distance to this capture
+ * (shared/utils/waveform/signature.ts), gathered per procedure: its nearest reference first.
+ */
+export async function matchCapture(capture: Capture): Promise<MatchGroupDto[]> {
   const refs = await SignatureReference.findAll({
     include: [{ model: Procedure, as: 'procedure', where: { status: 'active' }, required: true, attributes: ['id'] }],
   })
@@ -44,8 +49,14 @@ export async function matchCapture(capture: Capture): Promise<SignatureMatchDto[
   const captures = new Map((await Capture.findAll({ where: { id: [...new Set(others.map(r => r.captureId))] }, attributes: ['id', 'features'] })).map(c => [c.id, c.features]))
   const ranked = rankSignatures(capture.features, others.map(r => ({ id: r.id, features: captures.get(r.captureId)! })).filter(r => r.features))
   const dtos = new Map((await referenceDtos(others)).map(d => [d.id, d]))
-  return ranked.slice(0, 20).map((m) => {
-    const f = captures.get(dtos.get(m.id)!.captureId)!
-    return { reference: dtos.get(m.id)!, distance: m.distance, similarity: m.similarity, features: { cutType: f.cutType, vrms: f.vrms, conductionAngleDeg: f.conductionAngleDeg, asymmetry: f.asymmetry, thd: f.thd } }
+  const matches: SignatureMatchDto[] = ranked.map((m) => {
+    const reference = dtos.get(m.id)!
+    const f = captures.get(reference.captureId)!
+    return { reference, distance: m.distance, similarity: m.similarity, features: { cutType: f.cutType, vrms: f.vrms, conductionAngleDeg: f.conductionAngleDeg, asymmetry: f.asymmetry, thd: f.thd } }
   })
+  return groupRanked(matches, m => m.reference.procedure.slug).slice(0, MAX_GROUPS).map(group => ({
+    procedure: group[0]!.reference.procedure,
+    similarity: group[0]!.similarity,
+    matches: group,
+  }))
 }

@@ -1,20 +1,42 @@
 import { createHash, randomUUID } from 'node:crypto'
 import { Readable } from 'node:stream'
-import type { CaptureDto } from '../../../shared/types/captures'
+import type { CaptureDto, CaptureFileDto, CaptureUploadFields } from '../../../shared/types/captures'
+import { roleAtLeast } from '../../../shared/types/roles'
 import { analyseWaveform, WaveformError, type WaveformAnalysis } from '../../../shared/utils/waveform/analyse'
-import { Attachment, Capture, RepairRecord, User, inTransaction } from '../../db'
-import { invalid, notFound, tooLarge } from '../errors'
+import { Attachment, Capture, RepairRecord, Revision, User, inTransaction } from '../../db'
+import { conflict, forbidden, invalid, notFound, tooLarge } from '../errors'
 import type { ObjectStore } from '../storage'
 import { ObjectStoreUnavailable } from '../storage'
-import { CaptureFormatError, parseCaptureCsv, type ParsedCapture } from './parse'
+import { CaptureFormatError, describeSkipped, parseCaptureCsv, type CaptureMeta, type ColumnChoice, type ParsedCapture } from './parse'
 import { referencesOfCapture } from './references'
 import { encodeSamples, seriesOf } from './samples'
 
 export const MAX_CAPTURE_BYTES = 50 * 1024 * 1024
 const OVERVIEW_BUCKETS = 2000
-const DETAIL_LIMIT = { halfCycles: 400, cutPoints: 400 }
+const DETAIL_LIMIT = { halfCycles: 400, cutPoints: 400, events: 200 }
 
-function analysisSummary(a: WaveformAnalysis): CaptureDto['analysis'] {
+function fileSummary(meta: CaptureMeta): CaptureFileDto {
+  const { skipped } = meta
+  return {
+    encoding: meta.encoding,
+    delimiter: meta.delimiter,
+    decimalComma: meta.decimalComma,
+    timeSource: meta.timeSource,
+    columns: { time: meta.columns.time.name, voltage: meta.columns.voltage.name, current: meta.columns.current?.name ?? null },
+    units: { time: meta.units.time, voltage: meta.units.voltage, current: meta.units.current ?? null },
+    dataRows: meta.dataRows,
+    droppedRows: meta.droppedRows,
+    skipped: { overRange: skipped.overRange, empty: skipped.empty, unreadable: skipped.unreadable, ranges: skipped.ranges, columns: skipped.columns },
+  }
+}
+
+/** The analysis' warnings, after what the file itself left out. */
+function warningsOf(a: WaveformAnalysis, meta: CaptureMeta): string[] {
+  if (meta.droppedRows === 0) return a.warnings
+  return [`${describeSkipped(meta.skipped, meta.dataRows)}: the figures leave those rows out`, ...a.warnings]
+}
+
+function analysisSummary(a: WaveformAnalysis, meta: CaptureMeta): CaptureDto['analysis'] {
   return {
     sampleRateHz: a.sampleRateHz,
     durationS: a.durationS,
@@ -26,8 +48,19 @@ function analysisSummary(a: WaveformAnalysis): CaptureDto['analysis'] {
       : null,
     cutPoints: a.cutPoints.slice(0, DETAIL_LIMIT.cutPoints),
     halfCycles: a.halfCycles.slice(0, DETAIL_LIMIT.halfCycles),
-    warnings: a.warnings,
+    events: a.events.slice(0, DETAIL_LIMIT.events),
+    eventsTotal: a.eventsTotal,
+    file: fileSummary(meta),
+    warnings: warningsOf(a, meta),
   }
+}
+
+/** A refusal of the file, naming the field to change: the file, or a column choice. */
+function formatRefusal(error: CaptureFormatError) {
+  const fields: Record<string, string> = { file: error.message }
+  if (error.field) fields[error.field] = error.message
+  if (error.code === 'AMBIGUOUS_COLUMNS') fields.voltageColumn = 'choose the column of the voltage at the load'
+  return invalid(error.message, fields, { code: error.code, row: error.row ?? null, ...(error.columns ? { columns: error.columns } : {}) })
 }
 
 function* chunks(data: Buffer, size = 1 << 20) {
@@ -35,13 +68,13 @@ function* chunks(data: Buffer, size = 1 << 20) {
 }
 
 /** Parses and analyses an export; a file Benchlore cannot use is refused with the problem named. */
-export async function readCapture(data: Buffer): Promise<{ parsed: ParsedCapture, analysis: WaveformAnalysis }> {
+export async function readCapture(data: Buffer, columns?: ColumnChoice): Promise<{ parsed: ParsedCapture, analysis: WaveformAnalysis }> {
   let parsed: ParsedCapture
   try {
-    parsed = await parseCaptureCsv(Readable.from(chunks(data)))
+    parsed = await parseCaptureCsv(Readable.from(chunks(data)), columns ? { columns } : {})
   }
   catch (error) {
-    if (error instanceof CaptureFormatError) throw invalid(error.message, { file: error.message }, { code: error.code, row: error.row ?? null })
+    if (error instanceof CaptureFormatError) throw formatRefusal(error)
     throw error
   }
   try {
@@ -53,12 +86,35 @@ export async function readCapture(data: Buffer): Promise<{ parsed: ParsedCapture
   }
 }
 
-/** Stores raw file and samples, then the rows; a failed store leaves no row behind. */
-export async function storeCapture(file: { data: Buffer }, opts: { label: string, recordId?: number }, actor: User, store: ObjectStore) {
-  if (!file.data.length) throw invalid('The file is empty.', { file: 'is empty' }, { code: 'EMPTY_FILE' })
+/**
+ * Who may file a capture with a record, and for which step: the record's technician or an
+ * editor, while the record is in progress; the step must be one of its pinned revision's.
+ */
+async function checkAttachment(recordId: number, stepKey: string | undefined, actor: User): Promise<void> {
+  const record = await RepairRecord.findByPk(recordId)
+  if (!record) throw invalid('No such repair record.', { recordId: 'unknown record' })
+  if (record.technicianId !== actor.id && !roleAtLeast(actor.role, 'editor')) {
+    throw forbidden('Only the record\'s technician or an editor can attach a capture to it.')
+  }
+  if (record.status !== 'in_progress') throw conflict('The record is closed: a capture can no longer be attached to it.')
+  if (stepKey === undefined) return
+  const revision = record.revisionId ? await Revision.findByPk(record.revisionId, { attributes: ['id', 'content'] }) : null
+  if (!revision?.content.steps.some(s => s.key === stepKey)) {
+    throw invalid(`The record's procedure has no step "${stepKey}".`, { stepKey: 'not a step of the record\'s procedure' })
+  }
+}
+
+function columnChoice(fields: CaptureUploadFields): ColumnChoice | undefined {
+  if (fields.voltageColumn === undefined) return undefined
+  return { voltage: fields.voltageColumn, current: fields.currentColumn === undefined || fields.currentColumn === 'none' ? null : fields.currentColumn }
+}
+
+/** Stores raw file and samples, then the rows; a refused or failed store leaves nothing behind. */
+export async function storeCapture(file: { data: Buffer }, fields: CaptureUploadFields, actor: User, store: ObjectStore) {
+  if (!file.data.length) throw invalid('The file is empty: export the capture again.', { file: 'is empty' }, { code: 'EMPTY_FILE' })
   if (file.data.length > MAX_CAPTURE_BYTES) throw tooLarge('The capture is larger than 50 MB.', { file: 'too large' })
-  if (opts.recordId && !(await RepairRecord.count({ where: { id: opts.recordId } }))) throw invalid('No such repair record.', { recordId: 'unknown record' })
-  const { parsed, analysis } = await readCapture(file.data)
+  if (fields.recordId !== undefined) await checkAttachment(fields.recordId, fields.stepKey, actor)
+  const { parsed, analysis } = await readCapture(file.data, columnChoice(fields))
   const id = randomUUID()
   const rawKey = `captures/${id}.csv`
   const samplesKey = `captures/${id}.samples`
@@ -74,8 +130,8 @@ export async function storeCapture(file: { data: Buffer }, opts: { label: string
     return await inTransaction(async (transaction) => {
       const attachment = await Attachment.create({ objectKey: rawKey, thumbnailKey: null, kind: 'capture', mime: 'text/csv', bytes: file.data.length, width: null, height: null, sha256: createHash('sha256').update(file.data).digest('hex'), uploadedById: actor.id }, { transaction })
       return await Capture.create({
-        attachmentId: attachment.id, samplesKey, label: opts.label, recordId: opts.recordId ?? null, uploadedById: actor.id,
-        features: analysis.features, analysis: analysisSummary(analysis), overview: seriesOf(parsed, OVERVIEW_BUCKETS),
+        attachmentId: attachment.id, samplesKey, label: fields.label, recordId: fields.recordId ?? null, stepKey: fields.stepKey ?? null, uploadedById: actor.id,
+        cutType: analysis.features.cutType, features: analysis.features, analysis: analysisSummary(analysis, parsed.meta), overview: seriesOf(parsed, OVERVIEW_BUCKETS),
       }, { transaction })
     })
   }
@@ -96,6 +152,7 @@ export async function captureDto(c: Capture): Promise<CaptureDto> {
     createdAt: c.createdAt.toISOString(),
     uploadedBy: { id: c.uploadedById, name: who?.name ?? 'Unknown' },
     recordId: c.recordId,
+    stepKey: c.stepKey,
     fileUrl: `/api/files/${c.attachmentId}`,
     features: c.features,
     analysis: c.analysis,

@@ -133,3 +133,18 @@ export function rankSignatures<Id>(
     .sort((x, y) => x.distance - y.distance || x.order - y.order)
     .map(({ id, distance, similarity }) => ({ id, distance, similarity }))
 }
+
+/**
+ * Ranked matches gathered per group (a procedure), each group in rank order and the groups
+ * ordered by their best match: a procedure with three references is one entry, not three.
+ */
+export function groupRanked<T>(ranked: readonly T[], key: (item: T) => string): T[][] {
+  const groups = new Map<string, T[]>()
+  for (const item of ranked) {
+    const k = key(item)
+    const group = groups.get(k)
+    if (group) group.push(item)
+    else groups.set(k, [item])
+  }
+  return [...groups.values()]
+}

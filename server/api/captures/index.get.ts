@@ -1,0 +1,9 @@
+import { CaptureListQuery } from '#shared/types/captures'
+import { listCaptures } from '../../services/captures/list'
+
+// The whole team sees every capture, as it sees every record; filters narrow the list.
+export default defineEventHandler(async (event) => {
+  const actor = await requireUser(event)
+  const query = await getValidatedQuery(event, parseWith(CaptureListQuery))
+  return await listCaptures(query, actor)
+})
