@@ -1,4 +1,5 @@
 import { z } from 'zod'
+import type { MatchGroupDto } from '#shared/types/captures'
 import { matchCapture } from '../../../services/captures/references'
 import { findCapture } from '../../../services/captures/store'
 
@@ -7,5 +8,5 @@ const Params = z.object({ id: z.coerce.number().int().positive() })
 export default defineEventHandler(async (event) => {
   await requireUser(event)
   const { id } = await getValidatedRouterParams(event, parseWith(Params))
-  return { data: await matchCapture(await findCapture(id)) }
+  return { data: await matchCapture(await findCapture(id)) } satisfies { data: MatchGroupDto[] }
 })

@@ -1,5 +1,5 @@
 import { z } from 'zod'
-import { ReferenceBody } from '#shared/types/captures'
+import { ReferenceBody, type ReferenceDto } from '#shared/types/captures'
 import { addReference } from '../../../services/captures/references'
 import { findCapture } from '../../../services/captures/store'
 
@@ -11,5 +11,5 @@ export default defineEventHandler(async (event) => {
   const body = await readValidatedBody(event, parseWith(ReferenceBody))
   const reference = await addReference(await findCapture(id), body, actor)
   setResponseStatus(event, 201)
-  return { reference }
+  return { reference } satisfies { reference: ReferenceDto }
 })

@@ -1,5 +1,5 @@
 import { z } from 'zod'
-import { SeriesQuery } from '#shared/types/captures'
+import { SeriesQuery, type SeriesDto } from '#shared/types/captures'
 import { captureSeries } from '../../../services/captures/samples'
 import { findCapture } from '../../../services/captures/store'
 
@@ -10,5 +10,5 @@ export default defineEventHandler(async (event) => {
   await requireUser(event)
   const { id } = await getValidatedRouterParams(event, parseWith(Params))
   const q = await getValidatedQuery(event, parseWith(SeriesQuery))
-  return await captureSeries(await findCapture(id), useObjectStore(), q)
+  return await captureSeries(await findCapture(id), useObjectStore(), q) satisfies SeriesDto
 })
