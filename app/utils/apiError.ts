@@ -6,7 +6,7 @@
 interface ApiError {
   statusCode?: number
   status?: number
-  data?: { message?: string, data?: { fields?: Record<string, string>, current?: unknown, revisionId?: number } }
+  data?: { message?: string, data?: { fields?: Record<string, string>, current?: unknown, revisionId?: number, code?: string, columns?: unknown } }
 }
 
 const asApiError = (error: unknown): ApiError => (error && typeof error === 'object' ? error as ApiError : {})
@@ -46,11 +46,6 @@ export function saveFailure<T>(error: unknown): { current: T } | { message: stri
 
 /** The route's own name for what went wrong (`data.code`, e.g. TOO_FEW_CYCLES), when it gave one. */
 export function apiErrorCode(error: unknown): string | undefined {
-  const code = (error as { data?: { data?: { code?: unknown } } }).data?.data?.code
+  const code = apiErrorDetail(error).code
   return typeof code === 'string' ? code : undefined
-}
-
-/** Something else the route said about the error (`data.<key>`, e.g. the columns to choose from). */
-export function apiErrorDetail<T>(error: unknown, key: string): T | undefined {
-  return (error as { data?: { data?: Record<string, unknown> } }).data?.data?.[key] as T | undefined
 }

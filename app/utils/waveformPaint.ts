@@ -1,6 +1,6 @@
 import type uPlot from 'uplot'
 import type { CutPoint, HalfCycleDetail } from '#shared/utils/waveform/analyse'
-import { palette } from '~~/tailwind.config'
+import { palette } from '~/utils/palette'
 
 // Painting of the waveform plot's own layers on uPlot's canvas: the two half-cycle tints, the
 // zero line, hatching of missing half-cycles and the switching markers. Pure functions of the
