@@ -14,7 +14,7 @@
 import os from 'node:os'
 import v8 from 'node:v8'
 import vm from 'node:vm'
-import { generateCorpus, type LabelledQuery } from '../../server/services/search/corpus'
+import { generateCorpus, type LabelledQuery } from './corpus'
 import { ProcedureSearchIndex } from '../../server/services/search/engine'
 
 function arg(name: string, fallback: number): number {

@@ -7,7 +7,7 @@ import v8 from 'node:v8'
 import vm from 'node:vm'
 import MiniSearch from 'minisearch'
 import { QueryTypes } from 'sequelize'
-import { generateCorpus, type LabelledQuery } from '../../server/services/search/corpus'
+import { generateCorpus, type LabelledQuery } from './corpus'
 import { ProcedureSearchIndex, type SearchDocument } from '../../server/services/search/engine'
 import { openBenchDatabase, timings } from '../lib/bench-stack'
 

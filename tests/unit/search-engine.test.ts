@@ -1,6 +1,6 @@
 import fc from 'fast-check'
 import { beforeEach, describe, expect, it, vi } from 'vitest'
-import { generateCorpus } from '../../server/services/search/corpus'
+import { generateCorpus } from '../../scripts/bench/corpus'
 import { EVIDENCE_WEIGHT, ProcedureSearchIndex, SEARCH_LIMITS, buildHighlightPattern, highlightStems, stemWords, type SearchDocument, type SearchHit, type SearchVocabulary } from '../../server/services/search/engine'
 import { HYPHENATED_CODE, QUERY_LIMITS, joinedCodes, parseQuery, stemWord, toIndexTerm } from '../../server/services/search/query'
 

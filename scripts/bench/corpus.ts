@@ -6,8 +6,8 @@
  * was planted on exactly one procedure and kept off every other one, so the relevant set is
  * that procedure alone, whatever else the generated text happens to say.
  */
-import type { SearchDocument, SearchVocabulary, SymptomVocabularyEntry } from './engine'
-import { seededRandom } from '../../../shared/utils/random'
+import type { SearchDocument, SearchVocabulary, SymptomVocabularyEntry } from '../../server/services/search/engine'
+import { seededRandom } from '../../shared/utils/random'
 
 export type LabelledQuery = { q: string, relevant: number[], kind: 'exact' | 'typo' | 'prefix' | 'synonym' }
 export type SyntheticCorpus = { docs: SearchDocument[], vocabulary: SearchVocabulary, queries: LabelledQuery[] }
