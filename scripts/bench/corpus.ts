@@ -6,7 +6,7 @@
  * was planted on exactly one procedure and kept off every other one, so the relevant set is
  * that procedure alone, whatever else the generated text happens to say.
  */
-import type { SearchDocument, SearchVocabulary, SymptomVocabularyEntry } from '../../server/services/search/engine'
+import type { SearchDocument, SearchVocabulary, SymptomVocabularyEntry } from '../../server/services/search/types'
 import { seededRandom } from '../../shared/utils/random'
 
 export type LabelledQuery = { q: string, relevant: number[], kind: 'exact' | 'typo' | 'prefix' | 'synonym' }

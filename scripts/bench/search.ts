@@ -8,7 +8,8 @@ import vm from 'node:vm'
 import MiniSearch from 'minisearch'
 import { QueryTypes } from 'sequelize'
 import { generateCorpus, type LabelledQuery } from './corpus'
-import { ProcedureSearchIndex, type SearchDocument } from '../../server/services/search/engine'
+import { ProcedureSearchIndex } from '../../server/services/search/engine'
+import type { SearchDocument } from '../../server/services/search/types'
 import { openBenchDatabase, timings } from '../lib/bench-stack'
 
 const N = Number(process.env.BENCH_PROCEDURES ?? 10_000)

@@ -2,8 +2,8 @@ import fc from 'fast-check'
 import { describe, expect, it } from 'vitest'
 import { Postings } from '../../server/services/search/postings'
 
-// The reference is JavaScript's own Map (ECMAScript semantics): Postings stands in for the
-// Map<number, number> MiniSearch keeps per term and field, iterating in ascending id order.
+// The reference is JavaScript's own Map (ECMAScript semantics): Postings stands in for a
+// Map<number, number> per term and field, iterating in ascending id order.
 
 type Op
   = | { kind: 'append', value: number }
@@ -82,7 +82,7 @@ describe('Postings behaves as a Map<number, number> in id order', () => {
   })
 
   it('iterates like a Map while entries are deleted and appended during the iteration', () => {
-    // What MiniSearch's vacuum does: walk a list, deleting entries as it goes. Ids added in
+    // Walking a list while deleting entries as it goes (as a clean-up pass would). Ids added in
     // increasing order, so the Map's insertion order is id order and the two must agree exactly.
     fc.assert(
       fc.property(

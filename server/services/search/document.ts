@@ -4,7 +4,7 @@
  */
 import MarkdownIt from 'markdown-it'
 import { RevisionContent, type RevisionContentInput } from '../../../shared/types/procedure'
-import type { SearchDocument, SearchVocabulary } from './engine'
+import type { SearchDocument, SearchVocabulary } from './types'
 
 // Raw HTML is parsed as HTML (and then left out) rather than kept as literal text.
 const markdown = new MarkdownIt({ html: true, linkify: false })

@@ -1,21 +1,19 @@
 /**
  * One term's postings in one field of the search index: document short id → term frequency.
  *
- * MiniSearch keeps these as `Map<number, number>`, one per term and field: 2.3 million entries
- * for 10,000 procedures, a large share of the index's heap and of its build time (every entry
- * is a hash-table slot the garbage collector copies and scans). `Postings` has the same
- * interface, and the same behaviour for what MiniSearch and the scorer do with it, but holds
- * the entries as [id, tf] pairs in one Int32Array (outside the scanned heap), sorted by id:
- * MiniSearch hands out short ids in increasing order and never reuses one, so adding a
- * document only ever appends.
+ * A `Map<number, number>` per term and field would hold 2.3 million entries for 10,000
+ * procedures, a large share of the index's heap and of its build time (every entry is a
+ * hash-table slot the garbage collector copies and scans). `Postings` has a Map's interface,
+ * but holds the entries as [id, tf] pairs in one Int32Array (outside the scanned heap), sorted
+ * by id: the term index hands out short ids in increasing order and never reuses one, so adding
+ * a document only ever appends.
  *
- * Differences from a Map, all outside what the index does:
+ * Differences from a Map:
  * - iteration is in ascending id order (for the index, the same as insertion order);
  * - keys must be integers in [0, 2^31) and values integers in [1, 2^31) (term counts), else
  *   `set` throws a RangeError;
  * - an iterator resumes after the last id it yielded when entries were compacted or inserted
- *   meanwhile, so deleting while iterating (MiniSearch's vacuum does) visits every other entry
- *   once, as with a Map.
+ *   meanwhile, so deleting while iterating visits every other entry once, as with a Map.
  * Deleting marks the pair (tf 0); marked pairs are squeezed out when the array would grow.
  * tests/unit/search-postings.test.ts holds it to a Map under random operation sequences.
  */

@@ -2,7 +2,8 @@ import { Op, QueryTypes } from 'sequelize'
 import { ChangeLogEntry, DeviceType, Procedure, Revision, Symptom, useDb } from '../../db'
 import { toSearchDocument } from './document'
 import { mergedSymptomSlugs } from '../vocabulary'
-import { ProcedureSearchIndex, type EvidenceLookup, type SearchRequest, type SearchVocabulary } from './engine'
+import { ProcedureSearchIndex } from './engine'
+import type { EvidenceLookup, SearchRequest, SearchVocabulary } from './types'
 
 /**
  * This instance's search index over the published procedures, kept in step with MariaDB:
