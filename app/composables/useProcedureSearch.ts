@@ -1,41 +1,7 @@
 import { onScopeDispose, ref, shallowRef, toValue, watch, type MaybeRefOrGetter } from 'vue'
 import type { LocationQuery, LocationQueryRaw } from 'vue-router'
 import { HAZARDS, type Hazard } from '#shared/types/hazards'
-
-// The answer of GET /api/search as the browser sees it (server/api/search.get.ts shapes it).
-
-/** Plain text; `match` marks the words the query matched. Rendered as text, never as HTML. */
-export interface SearchSnippetPart { text: string, match: boolean }
-
-export interface SearchHighlight {
-  field: 'symptom' | 'title' | 'cause' | 'step' | 'text'
-  snippet: SearchSnippetPart[]
-  clippedStart: boolean
-  clippedEnd: boolean
-}
-
-export interface SearchHitDto {
-  slug: string
-  title: string
-  deviceType: { slug: string, name: string }
-  symptoms: Array<{ slug: string, name: string }>
-  hazards: string[]
-  score: number
-  highlights: SearchHighlight[]
-}
-
-export interface SearchFacetValue { value: string, label: string, count: number }
-
-export interface ProcedureSearchAnswer {
-  hits: SearchHitDto[]
-  total: number
-  facets: { deviceType: SearchFacetValue[], symptom: SearchFacetValue[], hazard: SearchFacetValue[] }
-  suggestions: Array<{ slug: string, name: string }>
-  mode: 'all' | 'partial' | 'browse' | 'none'
-  tookMs: number
-}
-
-export interface CommonSymptomDto { slug: string, name: string, records: number }
+import type { ProcedureSearchAnswer, SearchHighlight, SearchHitDto, SearchSnippetPart } from '#shared/types/search'
 
 /** What the results page keeps in its address, so a search can be shared and revisited. */
 export interface SearchFilters {
@@ -161,7 +127,7 @@ export function useProcedureSearch(text: MaybeRefOrGetter<string>, options: { li
     inFlight = controller
     pending.value = true
     try {
-      const res = await $fetch<ProcedureSearchAnswer>('/api/search', { query: { q, limit }, signal: controller.signal })
+      const res = await $fetch('/api/search', { query: { q, limit }, signal: controller.signal })
       if (mine !== turn) return
       answer.value = res
       answeredFor.value = q

@@ -1,5 +1,6 @@
 import { z } from 'zod'
 import { HAZARDS } from '#shared/types/hazards'
+import type { ProcedureSearchAnswer } from '#shared/types/search'
 
 // Long or strange input is not an error a technician can fix by retyping, so it is cleaned
 // (parseQuery drops control characters and punctuation, caps terms); only absurd sizes are 400.
@@ -25,5 +26,5 @@ export default defineEventHandler(async (event) => {
     suggestions: result.suggestions,
     mode: result.mode,
     tookMs: result.tookMs,
-  }
+  } satisfies ProcedureSearchAnswer
 })

@@ -47,6 +47,3 @@ export interface ProcedureSearchAnswer {
   /** Server time spent answering. */
   tookMs: number
 }
-
-/** GET /api/symptoms/common: the team's most reported symptoms. */
-export interface CommonSymptomDto { slug: string, name: string, records: number }
