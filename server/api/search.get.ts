@@ -16,9 +16,7 @@ const Query = z.object({
 export default defineEventHandler(async (event) => {
   await requireUser(event)
   const query = await getValidatedQuery(event, parseWith(Query))
-  const search = useSearch()
-  if (!(await search.whenReady())) throw createError({ statusCode: 503, message: 'The search index is still being built; try again in a moment.' })
-  const result = search.search(query)
+  const result = await useSearch().search(query)
   return {
     hits: result.hits.map(h => ({ slug: h.slug, title: h.title, deviceType: h.deviceType, symptoms: h.symptoms, hazards: h.hazards, score: h.score, highlights: h.highlights })),
     total: result.total,

@@ -1,9 +1,10 @@
 import { Op, QueryTypes } from 'sequelize'
 import { ChangeLogEntry, DeviceType, Procedure, Revision, Symptom, useDb } from '../../db'
 import { toSearchDocument } from './document'
+import { unavailable } from '../errors'
 import { mergedSymptomSlugs } from '../vocabulary'
 import { ProcedureSearchIndex } from './engine'
-import type { EvidenceLookup, SearchRequest, SearchVocabulary } from './types'
+import type { EvidenceLookup, SearchRequest, SearchResponse, SearchVocabulary } from './types'
 
 /**
  * This instance's search index over the published procedures, kept in step with MariaDB:
@@ -46,12 +47,13 @@ export class SearchSync {
     return await Promise.race([ready, new Promise<boolean>(r => setTimeout(() => r(false), timeoutMs))])
   }
 
-  search(request: SearchRequest) {
+  /**
+   * Answers a search, weighing hits by repair evidence. While the index is still being built
+   * (or the database has not answered yet) this waits a while, then throws `unavailable`.
+   */
+  async search(request: SearchRequest): Promise<SearchResponse> {
+    if (!(await this.whenReady())) throw unavailable('The search index is still being built; try again in a moment.')
     return this.index.search(request, { evidence: this.evidenceLookup })
-  }
-
-  get vocabularySnapshot() {
-    return this.vocabulary
   }
 
   private async load() {
