@@ -16,6 +16,16 @@ describe('search over published procedures', () => {
     expect(res.body).toHaveProperty('tookMs')
   })
 
+  it('finds nothing for words that carry no symptom', async () => {
+    const tech = await signedIn(DEMO.technician)
+    for (const q of ['nothing', 'not', 'it does not', 'zzqx nothing']) {
+      const res = await tech.get(`/api/search?q=${encodeURIComponent(q)}`)
+      expect(res.status, q).toBe(200)
+      expect(res.body.hits, q).toEqual([])
+      expect(res.body.total, q).toBe(0)
+    }
+  })
+
   it('counts facets correctly under combined filters', async () => {
     const tech = await signedIn(DEMO.technician)
     type Item = { slug: string, deviceType: { slug: string }, symptoms: Array<{ slug: string }>, hazards: string[] }

@@ -1,7 +1,9 @@
 import { describe, expect, it } from 'vitest'
 import { DEMO_DEVICE_TYPES, DEMO_PROCEDURES, DEMO_SYMPTOMS } from '../../scripts/seed/demo-content'
 import { markdownToText, toSearchDocument } from '../../server/services/search/document'
-import { ProcedureSearchIndex, type SearchVocabulary } from '../../server/services/search/engine'
+import { ProcedureSearchIndex } from '../../server/services/search/engine'
+import { toIndexTerm, tokenizeWords } from '../../server/services/search/query'
+import type { SearchDocument, SearchVocabulary } from '../../server/services/search/types'
 
 // Relevance on the demo library, searched the way a technician types at the bench. Each
 // query's expected procedures follow from what the procedures are about (their symptoms,
@@ -18,14 +20,15 @@ const published = (p: (typeof DEMO_PROCEDURES)[number]) => p.revisions.find(r =>
 const DAY = 86_400_000
 const NOW = Date.UTC(2026, 0, 15)
 
+const DEMO_DOCS: SearchDocument[] = DEMO_PROCEDURES.flatMap((p) => {
+  const rev = published(p)
+  return rev ? [toSearchDocument(idOf.get(p.slug)!, p.slug, rev.content, vocabulary, new Date(NOW - rev.daysAgo * DAY).toISOString())] : []
+})
+
 /** As the server will: the published revision of every procedure that has one, then retirements. */
 function buildDemoIndex(): ProcedureSearchIndex {
   const index = new ProcedureSearchIndex(vocabulary)
-  const docs = DEMO_PROCEDURES.flatMap((p) => {
-    const rev = published(p)
-    return rev ? [toSearchDocument(idOf.get(p.slug)!, p.slug, rev.content, vocabulary, new Date(NOW - rev.daysAgo * DAY).toISOString())] : []
-  })
-  index.build(docs)
+  index.build(DEMO_DOCS)
   for (const p of DEMO_PROCEDURES) if (p.retired) index.discard(idOf.get(p.slug)!)
   return index
 }
@@ -150,6 +153,30 @@ describe('search relevance on the demo library', () => {
       for (const h of index.search({ q, limit: 100 }).hits) expect(hidden.has(slugOf.get(h.id)!), `${q} → ${slugOf.get(h.id)}`).toBe(false)
     }
     expect(index.search({ q: '', deviceType: 'push-dimmer-leading-edge', limit: 100 }).hits.map(h => h.slug).sort()).toEqual(['pd400-buzzes-low', 'pd400-dead-after-lamp-failure', 'pd400-scorch-marks'])
+  })
+})
+
+describe('words that carry no symptom', () => {
+  const index = buildDemoIndex()
+  const slugs = (q: string): string[] => index.search({ q, limit: 100 }).hits.map(h => h.slug)
+
+  it.each(['nothing', 'not', 'no', 'never', 'it does not', 'it does not ', 'zzqx nothing', 'nothing zzqx '])('"%s" finds nothing', (q) => {
+    expect(slugs(q)).toEqual([])
+  })
+
+  // Every word of a procedure as the index reads it, the synonyms of its symptoms included.
+  const wordsOf = (slug: string): Set<string> => {
+    const d = DEMO_DOCS.find(x => x.slug === slug)!
+    const synonyms = d.symptoms.flatMap(s => vocabulary.symptoms.find(v => v.slug === s.slug)?.synonyms ?? [])
+    const text = [d.title, d.text, d.deviceType.name, ...d.causes.map(c => c.name), ...d.stepTitles, ...d.symptoms.map(s => s.name), ...synonyms].join(' ')
+    return new Set(tokenizeWords(text).map(w => toIndexTerm(w)).filter((t): t is string => t !== null))
+  }
+
+  it.each(['doesnt dim', 'doesnt dim ', 'does not dim', 'won\'t dim', 'no dimming'])('"%s" lists the no-dimming procedures first, and nothing that only says "no" or "not"', (q) => {
+    const hits = slugs(q)
+    expect(hits.slice(0, 2).sort()).toEqual(['vr240-half-cycle-flicker', 'vr240-stuck-at-full'])
+    // The demo's "Does not dim" procedures (by reading them); every other hit must be about dimming.
+    for (const slug of hits.slice(2)) expect(wordsOf(slug).has('dim'), `${q} → ${slug}`).toBe(true)
   })
 })
 

@@ -9,12 +9,14 @@
  *     dictionary of indexed words (edit distance 1, or 2 above 8 characters).
  *  2. Runs of terms that spell a vocabulary symptom name or synonym are recognised; the run
  *     may then also match the symptom's key, so "buzz" finds procedures filed under "Hums".
+ *     A negation carries no symptom: it counts inside such a run ("does not dim") and is no
+ *     search term anywhere else, so "not" or "nothing" alone finds nothing.
  *  3. All slots must match (the index evaluates them rarest first). When that leaves fewer
  *     than THIN_RESULT hits, corrections are tried for every long term (a typo can be a real
  *     word), then one term may be missing, then half of them.
  */
 import { maxEdits, type SpellingDictionary } from './analysis'
-import { SHORT_PREFIX_FIELDS, WORD_FIELDS } from './fields'
+import { BODY_FIELD, SHORT_PREFIX_FIELDS, WORD_FIELDS } from './fields'
 import { NEGATION_TERM, completionStems, type ParsedQuery } from './query'
 import type { PhraseSlot, SymptomPhrases, SymptomSpan } from './symptom-phrases'
 import type { MatchNode, ScoredDocument, TermIndex } from './term-index'
@@ -23,14 +25,22 @@ import type { MatchNode, ScoredDocument, TermIndex } from './term-index'
 const THIN_RESULT = 3
 /** A negation alone says little ("not" is everywhere in procedure text); it refines. */
 const NEGATION_WEIGHT = 0.5
+/**
+ * Where a negation inside a symptom phrase is looked for: not in body text, where "do not
+ * touch" and "no load" are in every other sentence.
+ */
+const NEGATION_FIELDS: readonly string[] = WORD_FIELDS.filter(f => f !== BODY_FIELD)
 /** Completing a word of one or two letters would walk a large part of the term tree for little. */
 const MIN_PREFIX_LENGTH = 3
 /** Below this length a word being typed is completed outside body text only. */
 const SHORT_PREFIX_LENGTH = 4
 
 type Alternative = { term: string, prefix: boolean, weight: number, fields: readonly string[] }
-/** One query term and what it may match; `insignificant`: too common to search for. */
-type Slot = PhraseSlot & { word: string, alternatives: Alternative[], insignificant: boolean }
+/**
+ * One query term and what it may match; `insignificant`: too common to search for; `filler`:
+ * it carries no symptom (a negation), so it only counts inside a symptom phrase.
+ */
+type Slot = PhraseSlot & { word: string, alternatives: Alternative[], insignificant: boolean, filler: boolean }
 
 /** One evaluation of the plan: its top-level groups and how many of them a document must match. */
 export type PlanRound = { groups: MatchNode[], minMatch: number }
@@ -132,22 +142,44 @@ export class QueryPlanner {
       const candidates = new Set<string>([term])
       for (const a of alternatives) if (!a.prefix) candidates.add(a.term)
       const resolved: Alternative[] = []
+      const filler = term === NEGATION_TERM
       for (const a of dedupeAlternatives(alternatives)) {
-        const fields = a.prefix ? (a.term.length < SHORT_PREFIX_LENGTH ? SHORT_PREFIX_FIELDS : WORD_FIELDS) : index.fieldsFor(a.term, WORD_FIELDS)
+        const fields = filler ? NEGATION_FIELDS : a.prefix ? (a.term.length < SHORT_PREFIX_LENGTH ? SHORT_PREFIX_FIELDS : WORD_FIELDS) : index.fieldsFor(a.term, WORD_FIELDS)
         if (fields) resolved.push({ ...a, fields })
       }
       // Every way of matching the term was too common to mean anything: it is left out of
       // the plan (though it still spells symptom names), unless nothing else is left.
       const insignificant = alternatives.length > 0 && resolved.length === 0
-      slots.push({ term, word, prefix: isPrefix, alternatives: insignificant ? [] : resolved, candidates, insignificant })
+      const prefixes = alternatives.filter(a => a.prefix).map(a => a.term)
+      slots.push({ term, word, prefix: isPrefix, alternatives: insignificant ? [] : resolved, candidates, prefixes, insignificant, filler })
     })
-    if (slots.length > 0 && slots.every(s => s.insignificant)) {
-      for (const s of slots) {
+    const carrying = slots.filter(s => !s.filler)
+    if (carrying.length > 0 && carrying.every(s => s.insignificant)) {
+      for (const s of carrying) {
         s.insignificant = false
-        s.alternatives = [{ term: s.term, prefix: s.prefix, weight: s.term === NEGATION_TERM ? NEGATION_WEIGHT : 1, fields: WORD_FIELDS }]
+        s.alternatives = [{ term: s.term, prefix: s.prefix, weight: 1, fields: WORD_FIELDS }]
       }
     }
     return slots
+  }
+
+  /**
+   * A word still being typed that completes a recognised symptom phrase is read as the
+   * phrase's word: "does not dim" means dim, not "dimmer" or "dimmable". Its exact
+   * alternatives stay (a half-typed "dimm" is heading for "dim"), and the prefix itself counts
+   * as a whole word where the index has it.
+   */
+  protected asPhraseWord(slot: Slot): Slot {
+    if (!slot.prefix) return slot
+    const alternatives: Alternative[] = []
+    for (const a of slot.alternatives) {
+      if (!a.prefix) alternatives.push(a)
+      else if (this.index.hasTerm(a.term)) {
+        const fields = this.index.fieldsFor(a.term, WORD_FIELDS)
+        if (fields) alternatives.push({ ...a, prefix: false, fields })
+      }
+    }
+    return alternatives.length > 0 ? { ...slot, alternatives: dedupeAlternatives(alternatives) } : slot
   }
 
   /**
@@ -169,7 +201,7 @@ export class QueryPlanner {
         if (shape === 'partial') {
           for (const slot of spanSlots) {
             const dedupeKey = `${slot.term}|${slot.prefix}`
-            if (slot.insignificant || seen.has(dedupeKey)) continue
+            if (slot.insignificant || slot.filler || seen.has(dedupeKey)) continue
             seen.add(dedupeKey)
             const node = slotNode(slot)
             if (node) groups.push(node)
@@ -177,10 +209,12 @@ export class QueryPlanner {
           groups.push(key)
         }
         else {
-          // A word the run repeats ("low … at low setting") counts once.
+          // A word the run repeats ("low … at low setting") counts once; negations alone are
+          // no description of the symptom.
           const distinct = spanSlots.filter((slot, k) => !slot.insignificant && spanSlots.findIndex(o => o.term === slot.term && o.prefix === slot.prefix) === k)
-          const inner = distinct.map(slot => slotNode(slot))
-          const words: MatchNode | null = inner.length > 0 && inner.every(n => n !== null) ? { kind: 'and', children: inner as MatchNode[] } : null
+          const inner = distinct.map(slot => slotNode(this.asPhraseWord(slot)))
+          const described = distinct.some(slot => !slot.filler)
+          const words: MatchNode | null = described && inner.every(n => n !== null) ? { kind: 'and', children: inner as MatchNode[] } : null
           groups.push(words ? { kind: 'or', children: [words, key] } : key)
         }
         i = span.end
@@ -189,7 +223,7 @@ export class QueryPlanner {
       }
       const slot = slots[i]!
       i++
-      if (slot.insignificant) continue
+      if (slot.insignificant || slot.filler) continue
       // "flicker flicker flicker" is one term, not three times the weight.
       const dedupeKey = `${slot.term}|${slot.prefix}`
       if (seen.has(dedupeKey)) continue

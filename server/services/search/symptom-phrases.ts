@@ -15,6 +15,8 @@ export type PhraseSlot = {
   prefix: boolean
   /** Index terms it may stand for (itself, its corrections). */
   candidates: ReadonlySet<string>
+  /** When still being typed: the beginnings it is completed from (itself, or the stem a half-typed suffix heads to). */
+  prefixes: readonly string[]
 }
 
 /** Query terms [start, end) that spell one of these symptoms' names or synonyms. */
@@ -40,7 +42,8 @@ export class SymptomPhrases {
         const terms = tokenizeWords(phrase)
           .map(t => toIndexTerm(t))
           .filter((t): t is string => t !== null)
-        if (terms.length === 0) continue
+        // A phrase of negations alone ("nothing", "none") would make every "not" this symptom.
+        if (terms.every(t => t === NEGATION_TERM)) continue
         const p = { terms, slug: s.slug }
         this.all.push(p)
         const list = this.byFirstTerm.get(terms[0]!)
@@ -128,5 +131,5 @@ export class SymptomPhrases {
 
 function slotSpells(slot: PhraseSlot, phraseTerm: string): boolean {
   if (slot.candidates.has(phraseTerm)) return true
-  return slot.prefix && slot.term.length >= 3 && phraseTerm.startsWith(slot.term)
+  return slot.prefix && [slot.term, ...slot.prefixes].some(p => p.length >= 3 && phraseTerm.startsWith(p))
 }
