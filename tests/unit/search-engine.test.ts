@@ -2,7 +2,7 @@ import fc from 'fast-check'
 import { beforeEach, describe, expect, it } from 'vitest'
 import { ProcedureSearchIndex } from '../../server/services/search/engine'
 import { buildHighlightPattern, highlightStems, stemWords } from '../../server/services/search/highlight'
-import { HYPHENATED_CODE, QUERY_LIMITS, joinedCodes, parseQuery, stemWord, toIndexTerm } from '../../server/services/search/query'
+import { HYPHENATED_CODE, QUERY_LIMITS, hyphenatedCodeSpans, joinedCodes, modelCodes, parseQuery, stemWord, toIndexTerm } from '../../server/services/search/query'
 import { EVIDENCE_WEIGHT } from '../../server/services/search/ranking'
 import { SEARCH_LIMITS, type SearchDocument, type SearchHit, type SearchVocabulary } from '../../server/services/search/types'
 
@@ -103,6 +103,25 @@ describe('parseQuery', () => {
     expect(parseQuery('flicker dimm ').lastTermIsPrefix).toBe(false)
     expect(parseQuery('flicker dimm.').lastTermIsPrefix).toBe(false)
     expect(parseQuery('dimm the').lastTermIsPrefix).toBe(false) // the last word typed was a stop word
+  })
+
+  // Model and part numbers as written on rating plates and in parts lists (common practice):
+  // letters and digits together, often hyphenated; a number with a unit is a value.
+  it.each([
+    { text: 'VR-240 stuck', codes: ['vr240'] },
+    { text: 'vr240 dead', codes: ['vr240'] },
+    { text: '1N4007 and BR1', codes: ['1n4007', 'br1'] },
+    { text: 'PX-10L lens', codes: ['px10l'] },
+    { text: 'VR240\'s knob', codes: ['vr240'] },
+    { text: '24V 50Hz 100µF 2.5A', codes: [] },
+    { text: 'USB-C charger', codes: [] },
+  ])('reads model and part codes: $text', ({ text, codes }) => {
+    expect(modelCodes(text).sort()).toEqual([...codes].sort())
+    expect(parseQuery(text).codes.sort()).toEqual(modelCodes(text.toLowerCase()).sort())
+  })
+
+  it('finds where hyphenated codes are, for highlighting', () => {
+    expect(hyphenatedCodeSpans('Vantrel VR-240 rotary, PX-10L')).toEqual([{ code: 'vr240', start: 8, end: 14 }, { code: 'px10l', start: 23, end: 29 }])
   })
 
   it('caps the query at its limits cheaply, without an error', () => {

@@ -180,6 +180,37 @@ describe('words that carry no symptom', () => {
   })
 })
 
+describe('model and part codes', () => {
+  const index = buildDemoIndex()
+  const slugs = (q: string): string[] => index.search({ q, limit: 100 }).hits.map(h => h.slug)
+  // The published procedures whose title or "applies to" names the model, by reading them.
+  const namedIn = (pattern: RegExp): string[] => DEMO_PROCEDURES
+    .filter(p => !p.retired && published(p) && pattern.test([published(p)!.content.title, ...published(p)!.content.appliesTo].join(' | ')))
+    .map(p => p.slug)
+    .sort()
+
+  it.each([
+    { q: 'vr-240 dead', model: /VR-240/ },
+    { q: 'VR240 dead', model: /VR-240/ },
+    { q: 'dead vr-240 ', model: /VR-240/ },
+    { q: 'pd-400 flickers', model: /PD-400/ },
+    { q: 'px10 dead', model: /PX-10/ },
+    { q: 'qc30 runs hot', model: /QC30/ },
+  ])('$q: the procedures for that model come before any other', ({ q, model }) => {
+    const expected = namedIn(model)
+    expect(expected.length).toBeGreaterThanOrEqual(2)
+    expect(slugs(q).slice(0, expected.length).sort(), q).toEqual(expected)
+  })
+
+  it('marks the model in the title, however the hyphen was typed', () => {
+    for (const q of ['vr240 dead', 'vr-240 dead']) {
+      const hit = index.search({ q }).hits.find(h => h.slug === 'vr240-glows-when-off')!
+      const title = hit.highlights.find(h => h.field === 'title')!
+      expect(title.snippet.filter(p => p.match).map(p => p.text).join(' '), q).toMatch(/^VR-240$|^VR 240$/)
+    }
+  })
+})
+
 describe('toSearchDocument', () => {
   it('turns a revision into plain text, names from the vocabulary', () => {
     const p = DEMO_PROCEDURES.find(x => x.slug === 'vr240-stuck-at-full')!

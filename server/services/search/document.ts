@@ -69,6 +69,7 @@ export function toSearchDocument(
     id: procedureId,
     slug,
     title: c.title,
+    appliesTo: [...c.appliesTo],
     deviceType: { slug: c.deviceType, name: device?.name ?? humanise(c.deviceType) },
     symptoms: c.symptoms.map(s => ({ slug: s, name: symptomName(s) })),
     hazards: [...c.hazards],

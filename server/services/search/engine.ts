@@ -33,14 +33,17 @@ import { FacetCodes, HAZARD_LABELS, type FacetCoded, type FacetLabels } from './
 import { BODY_FIELD, fieldReaders, fieldTexts } from './fields'
 import { Highlighter } from './highlight'
 import { QueryPlanner, type PlanRound } from './planner'
-import { parseQuery } from './query'
-import { EVIDENCE_WEIGHT, applyEvidence, topMatches } from './ranking'
+import { modelCodes, parseQuery } from './query'
+import { EVIDENCE_WEIGHT, applyEvidence, byCodesNamed, topMatches } from './ranking'
 import { SymptomPhrases } from './symptom-phrases'
 import { TermIndex, type IndexSnapshot, type MatchNode } from './term-index'
 import { SEARCH_LIMITS, type DeviceTypeVocabularyEntry, type EvidenceLookup, type SearchDocument, type SearchHit, type SearchRequest, type SearchResponse, type SearchVocabulary, type SymptomVocabularyEntry } from './types'
 
-/** An indexed procedure: our own copy of it, its short id in the term index, its facet codes. */
-type DocRecord = FacetCoded & { doc: SearchDocument, short: number }
+/**
+ * An indexed procedure: our own copy of it, its short id in the term index, its facet codes and
+ * the model codes its title and "applies to" name.
+ */
+type DocRecord = FacetCoded & { doc: SearchDocument, short: number, models: ReadonlySet<string> }
 
 type IndexState = {
   index: TermIndex
@@ -244,14 +247,20 @@ export class ProcedureSearchIndex {
 
     const { passing, facets } = this.facetCodes.narrow(matches, m => m.rec, filters, this.facetLabels(state))
 
-    // Only what can reach the page is put in order (browse lists are in order already).
+    // Only what can reach the page is put in order (browse lists are in order already): the
+    // procedures naming the query's model codes first, each tier by text score and evidence.
     const pageEnd = offset + limit
     const evidenceSymptoms = [...new Set([...detected, ...(filters.symptom ? [filters.symptom] : [])])]
     const weighEvidence = mode !== 'browse' && options.evidence !== undefined && evidenceSymptoms.length > 0
     let ranked = passing
     if (mode !== 'browse') {
-      ranked = topMatches(passing, pageEnd, weighEvidence ? 1 + EVIDENCE_WEIGHT : 1)
-      if (weighEvidence) ranked = applyEvidence(ranked, evidenceSymptoms, options.evidence!)
+      ranked = []
+      for (const tier of byCodesNamed(passing, m => m.rec.models, parsed.codes)) {
+        if (ranked.length >= pageEnd) break
+        let head = topMatches(tier, pageEnd - ranked.length, weighEvidence ? 1 + EVIDENCE_WEIGHT : 1)
+        if (weighEvidence) head = applyEvidence(head, evidenceSymptoms, options.evidence!)
+        ranked.push(...head)
+      }
     }
 
     const hits = ranked.slice(offset, pageEnd).map(m => this.hit(m, state, plan))
@@ -328,6 +337,7 @@ export class ProcedureSearchIndex {
       device: this.facetCodes.code('device', doc.deviceType.slug),
       symptoms: doc.symptoms.map(s => this.facetCodes.code('symptom', s.slug)),
       hazards: doc.hazards.map(h => this.facetCodes.code('hazard', h)),
+      models: new Set(modelCodes([doc.title, ...(doc.appliesTo ?? [])].join('\n'))),
     }
     state.records.set(doc.id, rec)
     state.byShort[short] = rec
@@ -413,6 +423,7 @@ function ownCopy(doc: SearchDocument): SearchDocument {
     id: doc.id,
     slug: doc.slug,
     title: doc.title,
+    ...(doc.appliesTo !== undefined ? { appliesTo: [...doc.appliesTo] } : {}),
     deviceType: { slug: doc.deviceType.slug, name: doc.deviceType.name },
     symptoms: doc.symptoms.filter(s => !seen.has(s.slug) && seen.add(s.slug)).map(s => ({ slug: s.slug, name: s.name })),
     hazards: [...new Set(doc.hazards)],

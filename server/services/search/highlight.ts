@@ -3,7 +3,7 @@
  * and step titles, and the stretch of its text with the most of them, as plain-text parts.
  */
 import { LRUCache } from 'lru-cache'
-import { NEGATION_TERM, wordSpans } from './query'
+import { NEGATION_TERM, hyphenatedCodeSpans, wordSpans } from './query'
 import type { SearchDocument, SearchHighlight, SearchSnippetPart } from './types'
 
 const MAX_HIGHLIGHTS = 5
@@ -60,20 +60,27 @@ export class Highlighter {
     return out.slice(0, MAX_HIGHLIGHTS)
   }
 
-  /** Splits a short field value into plain-text parts, marking the words that matched. */
+  /**
+   * Splits a short field value into plain-text parts, marking the words that matched, and a
+   * hyphenated code ("VR-240") as one when its joined form did.
+   */
   protected markWords(text: string, matched: Set<string>): SearchSnippetPart[] | null {
+    const codes = hyphenatedCodesIn(text, matched)
+    const ranges: Array<{ start: number, end: number }> = [...codes]
+    for (const span of wordSpans(text)) {
+      if (codes.some(c => span.start < c.end && span.end > c.start)) continue
+      const term = this.term(span.word)
+      if (term !== null && matched.has(term)) ranges.push(span)
+    }
+    if (ranges.length === 0) return null
+    ranges.sort((a, b) => a.start - b.start)
     const parts: SearchSnippetPart[] = []
     let cursor = 0
-    let any = false
-    for (const span of wordSpans(text)) {
-      const term = this.term(span.word)
-      if (term === null || !matched.has(term)) continue
-      if (span.start > cursor) parts.push({ text: text.slice(cursor, span.start), match: false })
-      parts.push({ text: text.slice(span.start, span.end), match: true })
-      cursor = span.end
-      any = true
+    for (const r of ranges) {
+      if (r.start > cursor) parts.push({ text: text.slice(cursor, r.start), match: false })
+      parts.push({ text: text.slice(r.start, r.end), match: true })
+      cursor = r.end
     }
-    if (!any) return null
     if (cursor < text.length) parts.push({ text: text.slice(cursor), match: false })
     return parts
   }
@@ -104,7 +111,12 @@ export class Highlighter {
       if (!pattern) return null
       for (const m of text.matchAll(pattern)) if (!offer(m.index, m.index + m[0].length)) break
     }
+    for (const c of hyphenatedCodesIn(text, matched)) {
+      if (found.some(f => f.start < c.end && f.end > c.start)) continue
+      found.push({ start: c.start, end: c.end, term: c.code })
+    }
     if (found.length === 0) return null
+    found.sort((a, b) => a.start - b.start)
     let best = 0
     let bestDistinct = 0
     for (let i = 0; i < found.length; i++) {
@@ -137,6 +149,12 @@ export class Highlighter {
     if (entry.pattern) entry.pattern.lastIndex = 0
     return entry.pattern
   }
+}
+
+/** The hyphenated codes of a text whose joined form is among the matched terms. */
+function hyphenatedCodesIn(text: string, matched: Set<string>): Array<{ code: string, start: number, end: number }> {
+  if (!/[-‐‑–]/.test(text) || ![...matched].some(t => /\d/.test(t))) return []
+  return hyphenatedCodeSpans(text).filter(c => matched.has(c.code))
 }
 
 /**

@@ -13,7 +13,8 @@
  *     search term anywhere else, so "not" or "nothing" alone finds nothing.
  *  3. All slots must match (the index evaluates them rarest first). When that leaves fewer
  *     than THIN_RESULT hits, corrections are tried for every long term (a typo can be a real
- *     word), then one term may be missing, then half of them.
+ *     word), then one term may be missing, then half of them; procedures naming a model code
+ *     of the query ("VR-240") then count as matches too.
  */
 import { maxEdits, type SpellingDictionary } from './analysis'
 import { BODY_FIELD, SHORT_PREFIX_FIELDS, WORD_FIELDS } from './fields'
@@ -108,9 +109,23 @@ export class QueryPlanner {
         }
       }
     }
+    if (mode === 'partial' && parsed.codes.length > 0) results = this.withNamedModels(results, parsed.codes, plan)
     if (results.length === 0) round = null
     const detectedSymptoms = [...new Set(spans.flatMap(s => s.slugs))].sort()
     return { results, plan, mode, detectedSymptoms, round }
+  }
+
+  /**
+   * When no procedure matched every word, the ones naming a model code of the query count as
+   * matches too (scored by the code alone): "vr240 dead" must offer the VR-240 procedures even
+   * when none of them says "dead". Their place in the list is the ranking's to decide.
+   */
+  protected withNamedModels(results: ScoredDocument[], codes: readonly string[], plan: MatchNode[]): ScoredDocument[] {
+    const nodes: MatchNode[] = codes.filter(code => this.index.hasTerm(code)).map(code => ({ kind: 'term', term: code, prefix: false, weight: 1, fields: WORD_FIELDS }))
+    if (nodes.length === 0) return results
+    plan.push(...nodes)
+    const seen = new Set(results.map(r => r.short))
+    return [...results, ...this.index.matchGroups(nodes, 1).filter(r => !seen.has(r.short))]
   }
 
   protected resolveSlots(parsed: ParsedQuery, correctKnownTerms: boolean): Slot[] {

@@ -122,6 +122,45 @@ export function joinedCodes(text: string): string[] {
   return out
 }
 
+/** A number with a unit (24V, 50Hz, 100µF, 2.5A): a value, not a model. */
+const VALUE_WITH_UNIT = /^\p{N}+(?:[.,]\p{N}+)?\p{L}{1,3}$/u
+const HAS_LETTER = /\p{L}/u
+const HAS_DIGIT = /\p{N}/u
+
+/**
+ * The model and part codes a text names, lowercased: words mixing letters and digits (CC350,
+ * 1N4007, BR1) and hyphenated codes joined (VR-240 → vr240, PX-10L → px10l), but not values with
+ * a unit (24V, 50Hz). Queries and procedures go through the same function, so a code typed
+ * "VR-240" or "vr240" meets the one in a title or an "applies to" line.
+ *
+ * @example modelCodes('Vantrel VR-240 rotary, 24V, board rev B') // ['vr240']
+ */
+export function modelCodes(text: string): string[] {
+  const codes = new Set<string>()
+  for (const token of tokenizeWords(text)) {
+    // VR240's is VR240.
+    const word = token.replace(/['’ʼ].*$/u, '')
+    if (HAS_LETTER.test(word) && HAS_DIGIT.test(word) && !VALUE_WITH_UNIT.test(word)) codes.add(normaliseWord(word))
+  }
+  for (const code of joinedCodes(text)) if (HAS_DIGIT.test(code)) codes.add(normaliseWord(code))
+  return [...codes]
+}
+
+/**
+ * Where the hyphenated codes of a text are, joined and lowercased (for highlighting a code typed
+ * without its hyphen).
+ *
+ * @example hyphenatedCodeSpans('Vantrel VR-240 rotary') // [{ code: 'vr240', start: 8, end: 14 }]
+ */
+export function hyphenatedCodeSpans(text: string): Array<{ code: string, start: number, end: number }> {
+  const out: Array<{ code: string, start: number, end: number }> = []
+  for (const m of text.matchAll(HYPHENATED_CODE)) {
+    const end = m.index + m[0].length
+    out.push({ code: normaliseWord(m[1]! + m[2]!), start: end - m[1]!.length - 1 - m[2]!.length, end })
+  }
+  return out
+}
+
 /** Word tokens with their positions in the original text (for highlighting). */
 export function wordSpans(text: string): Array<{ word: string, start: number, end: number }> {
   const spans: Array<{ word: string, start: number, end: number }> = []
@@ -219,6 +258,8 @@ export type ParsedQuery = {
   lastTermIsPrefix: boolean
   /** True when the query was cut to the limits. */
   truncated: boolean
+  /** Model and part codes the query names (`modelCodes`). */
+  codes: string[]
 }
 
 // Cc: control characters act as separators; Cf (zero-width space, soft hyphen, bidi marks) are
@@ -232,7 +273,7 @@ const FORMAT = /\p{Cf}/gu
  * first `scanChars` characters are looked at).
  */
 export function parseQuery(q: unknown): ParsedQuery {
-  if (typeof q !== 'string' || q.length === 0) return { terms: [], words: [], lastTermIsPrefix: false, truncated: false }
+  if (typeof q !== 'string' || q.length === 0) return { terms: [], words: [], lastTermIsPrefix: false, truncated: false, codes: [] }
   let truncated = q.length > QUERY_LIMITS.scanChars
   let s = q.slice(0, QUERY_LIMITS.scanChars)
   s = s.replace(FORMAT, '').replace(CONTROL, ' ').toLowerCase().normalize('NFKD').replace(COMBINING_MARKS, '').replace(APOSTROPHES, '\'')
@@ -262,5 +303,5 @@ export function parseQuery(q: unknown): ParsedQuery {
   const endsInWord = /[\p{L}\p{N}]$/u.test(s)
   const last = terms[terms.length - 1]
   const lastTermIsPrefix = !truncated && endsInWord && lastTokenKept && last !== undefined && last !== NEGATION_TERM && words[words.length - 1]!.length >= 2
-  return { terms, words, lastTermIsPrefix, truncated }
+  return { terms, words, lastTermIsPrefix, truncated, codes: terms.length ? modelCodes(s) : [] }
 }

@@ -33,6 +33,25 @@ export function topMatches<T extends Ranked>(matches: T[], pageEnd: number, slac
 }
 
 /**
+ * Matches split by how many of the query's model or part codes they name (in their title or
+ * "applies to"), most first: a technician who types a model number wants that model's
+ * procedures before another product's, however well the other words match.
+ *
+ * @example byCodesNamed(matches, m => m.codes, ['vr240']) // [[VR-240 procedures], [the rest]]
+ */
+export function byCodesNamed<T>(matches: readonly T[], codesOf: (match: T) => ReadonlySet<string>, codes: readonly string[]): T[][] {
+  if (codes.length === 0) return [[...matches]]
+  const tiers: T[][] = Array.from({ length: codes.length + 1 }, () => [])
+  for (const m of matches) {
+    const own = codesOf(m)
+    let named = 0
+    for (const code of codes) if (own.has(code)) named++
+    tiers[codes.length - named]!.push(m)
+  }
+  return tiers.filter(tier => tier.length > 0)
+}
+
+/**
  * The evidence factor of a procedure: 1 + W · r, r = (confirmed + 1) / (total + 2), the
  * Laplace-smoothed rate at which repair records confirmed its causes (0.5 with no records,
  * → 1 with many confirmations, → 0 with many refutations). Nonsense from the lookup counts as

@@ -13,6 +13,8 @@ export type SearchDocument = {
   id: number
   slug: string
   title: string
+  /** Models and boards the procedure is written for; with the title, where its model codes are read. */
+  appliesTo?: string[]
   deviceType: { slug: string, name: string }
   symptoms: Array<{ slug: string, name: string }>
   hazards: string[]
