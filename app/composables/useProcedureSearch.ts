@@ -1,7 +1,7 @@
 import { onScopeDispose, ref, shallowRef, toValue, watch, type MaybeRefOrGetter } from 'vue'
 import type { LocationQuery, LocationQueryRaw } from 'vue-router'
 import { HAZARDS, type Hazard } from '#shared/types/hazards'
-import type { ProcedureSearchAnswer, SearchHighlight, SearchHitDto, SearchSnippetPart } from '#shared/types/search'
+import type { ProcedureSearchAnswer, SearchFacetValue, SearchHighlight, SearchHitDto, SearchSnippetPart } from '#shared/types/search'
 
 /** What the results page keeps in its address, so a search can be shared and revisited. */
 export interface SearchFilters {
@@ -46,6 +46,36 @@ export function searchQuery(filters: Partial<SearchFilters>): LocationQueryRaw {
   if (filters.hazard) out.hazard = filters.hazard
   if (filters.offset) out.offset = String(filters.offset)
   return out
+}
+
+/** One facet as the results page shows it: its values, the chosen one included. */
+export interface FacetGroup { facet: FacetName, legend: string, values: SearchFacetValue[] }
+
+const FACET_LEGENDS: ReadonlyArray<{ facet: FacetName, legend: string }> = [
+  { facet: 'deviceType', legend: 'Device type' },
+  { facet: 'symptom', legend: 'Symptom' },
+  { facet: 'hazard', legend: 'Hazard' },
+]
+
+/**
+ * The facets worth offering for an answer. A chosen filter stays (to be switched off) even when
+ * the answer has no count for it; a single value that every result already has narrows
+ * nothing and is left out unless chosen.
+ */
+export function facetGroups(answer: Pick<ProcedureSearchAnswer, 'facets' | 'hits' | 'total'>, filters: SearchFilters): FacetGroup[] {
+  const valuesOf = (facet: FacetName): SearchFacetValue[] => {
+    const values = answer.facets[facet]
+    const chosen = filters[facet]
+    if (!chosen || values.some(v => v.value === chosen)) return values
+    const hit = answer.hits[0]
+    const label = facet === 'deviceType'
+      ? (hit?.deviceType.slug === chosen ? hit.deviceType.name : undefined)
+      : facet === 'symptom' ? hit?.symptoms.find(s => s.slug === chosen)?.name : undefined
+    return [{ value: chosen, label: label ?? chosen.replace(/[-_]/g, ' '), count: 0 }, ...values]
+  }
+  const narrows = (facet: FacetName, values: SearchFacetValue[]) =>
+    values.length > 1 || values.some(v => v.value === filters[facet] || v.count < answer.total)
+  return FACET_LEGENDS.map(g => ({ ...g, values: valuesOf(g.facet) })).filter(g => g.values.length > 0 && narrows(g.facet, g.values))
 }
 
 /** The same search with one facet switched on (or off, when it is already the chosen one). Paging starts again. */

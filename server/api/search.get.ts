@@ -23,6 +23,5 @@ export default defineEventHandler(async (event) => {
     facets: result.facets,
     suggestions: result.suggestions,
     mode: result.mode,
-    tookMs: result.tookMs,
   } satisfies ProcedureSearchAnswer
 })

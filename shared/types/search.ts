@@ -44,6 +44,4 @@ export interface ProcedureSearchAnswer {
   /** Closest symptom names/synonyms to the query ("did you mean"), best first. */
   suggestions: Array<{ slug: string, name: string }>
   mode: SearchMode
-  /** Server time spent answering. */
-  tookMs: number
 }

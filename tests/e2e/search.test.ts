@@ -117,7 +117,9 @@ describe('symptom-first search in Chromium', () => {
     await page.getByTestId(`search-result-${HALF_CYCLE}`).waitFor()
     expect(await page.getByTestId('search-result-cc350-flicker-when-dimmed').count()).toBe(1)
     expect(await page.getByTestId('header-search').inputValue()).toBe('flicker')
-    expect(await page.getByTestId('search-took').textContent()).toMatch(/took .*ms/)
+    // No timings for developers on the page; at this width the facets show without a control.
+    expect(await page.locator('main').innerText()).not.toMatch(/\btook\b|\d\s*ms\b/)
+    expect(await page.getByTestId('search-facets-toggle').isVisible()).toBe(false)
 
     const facet = page.getByTestId(`facet-deviceType-${TRAILING_EDGE_DIMMER}`)
     const facetCount = Number((await facet.getByTestId('facet-count').textContent())?.trim())
@@ -185,8 +187,28 @@ describe('symptom-first search in Chromium', () => {
 
       await page.goto(`${BASE_URL}/search?q=flicker`)
       await page.getByTestId(`search-result-${HALF_CYCLE}`).waitFor()
+      await page.locator('[data-testid="header-search"][data-ready="true"]').waitFor()
       expect(await page.evaluate(() => document.documentElement.scrollWidth)).toBeLessThanOrEqual(360)
+      // Results first: the facets are folded behind one control, the first result on the first screen.
+      const chip = page.getByTestId(`facet-deviceType-${TRAILING_EDGE_DIMMER}`)
+      const toggle = page.getByTestId('search-facets-toggle')
+      expect(await chip.isVisible()).toBe(false)
+      expect(await toggle.getAttribute('aria-expanded')).toBe('false')
+      const first = await page.locator('article[data-testid^="search-result-"]').first().boundingBox()
+      expect(first!.y + 40).toBeLessThan(760)
+      expect(await page.locator('main').innerText()).not.toMatch(/\btook\b|\d\s*ms\b/)
       await screenshot(page, 'search-results-phone')
+
+      await toggle.click()
+      expect(await toggle.getAttribute('aria-expanded')).toBe('true')
+      await chip.waitFor()
+      await screenshot(page, 'search-results-phone-filters')
+      await chip.click()
+      await page.waitForURL(url => url.searchParams.get('deviceType') === TRAILING_EDGE_DIMMER)
+      // Chosen: folded again, the control says a filter is on.
+      await expect.poll(() => toggle.textContent()).toMatch(/1 on/)
+      expect(await chip.isVisible()).toBe(false)
+      await screenshot(page, 'search-results-phone-filtered')
     }
     finally {
       await phone.close()

@@ -55,7 +55,7 @@ export type SearchResponse = {
   /** Symptoms the query names (by vocabulary name or synonym), used for evidence weighting. */
   detectedSymptoms: string[]
   mode: SearchMode
-  /** Time spent answering. */
+  /** Time spent answering, for benchmarks; not sent to the browser. */
   tookMs: number
 }
 
