@@ -1,3 +1,5 @@
+import type { SymptomDto } from './procedure-api'
+
 // What GET /api/search answers, stated once for the server (server/api/search.get.ts checks its
 // answer against it with `satisfies`) and the browser (the search box, the results page).
 
@@ -45,3 +47,6 @@ export interface ProcedureSearchAnswer {
   suggestions: Array<{ slug: string, name: string }>
   mode: SearchMode
 }
+
+/** GET /api/symptoms/match: a symptom the picker's typed words find; `via`, the synonym that matched when the name did not. */
+export interface SymptomMatchDto { symptom: SymptomDto, via: string | null }

@@ -62,6 +62,7 @@ export const ROUTE_ACCESS: Record<string, Access> = {
   'GET /api/dashboard': 'technician',
   'GET /api/search': 'technician',
   'GET /api/symptoms/common': 'technician',
+  'GET /api/symptoms/match': 'technician',
   'POST /api/captures': 'technician',
   'GET /api/captures': 'technician',
   'GET /api/captures/:id': 'technician',

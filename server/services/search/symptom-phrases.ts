@@ -23,7 +23,10 @@ export type PhraseSlot = {
 export type SymptomSpan = { start: number, end: number, slugs: string[] }
 
 type Phrase = { terms: string[], slug: string }
-type PhraseEntry = { id: number, slug: string, phrase: string }
+type PhraseEntry = { id: number, slug: string, phrase: string, isName: boolean }
+
+/** A symptom whose name or synonym a typed text matches; `via`: the synonym, when the name did not match. */
+export type SymptomMatch = { slug: string, via: string | null }
 
 const MAX_SUGGESTIONS = 5
 
@@ -38,7 +41,7 @@ export class SymptomPhrases {
     for (const s of symptoms) {
       this.names.set(s.slug, s.name)
       for (const phrase of [s.name, ...s.synonyms]) {
-        entries.push({ id: entries.length, slug: s.slug, phrase })
+        entries.push({ id: entries.length, slug: s.slug, phrase, isName: phrase === s.name })
         const terms = tokenizeWords(phrase)
           .map(t => toIndexTerm(t))
           .filter((t): t is string => t !== null)
@@ -53,7 +56,7 @@ export class SymptomPhrases {
     }
     this.suggestionIndex = new MiniSearch<PhraseEntry>({
       fields: ['phrase'],
-      storeFields: ['slug'],
+      storeFields: ['slug', 'phrase', 'isName'],
       tokenize: text => tokenizeWords(text),
       // Both the stem and the word itself, so a typo is measured against what was written.
       processTerm: (token) => {
@@ -106,18 +109,9 @@ export class SymptomPhrases {
    */
   suggest(parsed: ParsedQuery): Array<{ slug: string, name: string }> {
     if (this.names.size === 0 || parsed.terms.length === 0) return []
-    const queries: Query[] = []
-    parsed.terms.forEach((term, i) => {
-      const word = parsed.words[i]!
-      const prefix = parsed.lastTermIsPrefix && i === parsed.terms.length - 1 && term.length >= 3
-      // The vocabulary is a few hundred phrases: fuzzy from 4 letters costs nothing here.
-      const edits = (w: string): number => (w.length >= 4 ? Math.max(1, maxEdits(w)) : 0)
-      queries.push({ queries: [term], prefix, fuzzy: edits(term) })
-      if (word !== term && term !== NEGATION_TERM) queries.push({ queries: [word], prefix, fuzzy: edits(word) })
-    })
     const seen = new Set<string>()
     const out: Array<{ slug: string, name: string }> = []
-    for (const r of this.suggestionIndex.search({ combineWith: 'OR', queries })) {
+    for (const r of this.suggestionIndex.search({ combineWith: 'OR', queries: wordQueries(parsed).flat() })) {
       const slug = r.slug as string
       if (seen.has(slug)) continue
       seen.add(slug)
@@ -127,6 +121,43 @@ export class SymptomPhrases {
     }
     return out
   }
+
+  /**
+   * Symptoms with a name or synonym that has every typed word, allowing typos and a half-typed
+   * last word as search does, best first: what a symptom picker lists as the author types.
+   *
+   * @example phrases.match(parseQuery('flikker')) // [{ slug: 'flicker', via: null }]
+   * @example phrases.match(parseQuery('stuck at ful')) // [{ slug: 'does-not-dim', via: 'stuck at full brightness' }]
+   */
+  match(parsed: ParsedQuery): SymptomMatch[] {
+    if (parsed.terms.length === 0) return []
+    const queries: Query[] = wordQueries(parsed).map(alternatives => ({ combineWith: 'OR', queries: alternatives }))
+    const order: string[] = []
+    const via = new Map<string, string | null>()
+    for (const r of this.suggestionIndex.search({ combineWith: 'AND', queries })) {
+      const slug = r.slug as string
+      if (!via.has(slug)) order.push(slug)
+      if (r.isName) via.set(slug, null)
+      else if (!via.has(slug)) via.set(slug, r.phrase as string)
+    }
+    return order.map(slug => ({ slug, via: via.get(slug) ?? null }))
+  }
+}
+
+/**
+ * The queries for each typed word: its term and, when they differ, the word as written (a typo
+ * is measured against what was written); fuzzy from 4 letters, prefix for a half-typed last word.
+ */
+function wordQueries(parsed: ParsedQuery): Query[][] {
+  return parsed.terms.map((term, i) => {
+    const word = parsed.words[i]!
+    const prefix = parsed.lastTermIsPrefix && i === parsed.terms.length - 1 && term.length >= 3
+    // The vocabulary is a few hundred phrases: fuzzy from 4 letters costs nothing here.
+    const edits = (w: string): number => (w.length >= 4 ? Math.max(1, maxEdits(w)) : 0)
+    const queries: Query[] = [{ queries: [term], prefix, fuzzy: edits(term) }]
+    if (word !== term && term !== NEGATION_TERM) queries.push({ queries: [word], prefix, fuzzy: edits(word) })
+    return queries
+  })
 }
 
 function slotSpells(slot: PhraseSlot, phraseTerm: string): boolean {
