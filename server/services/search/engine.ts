@@ -85,11 +85,16 @@ export class ProcedureSearchIndex {
     return this.state.records.size
   }
 
+  /** @example search.has(procedure.id) // false once it was discarded */
   has(id: number): boolean {
     return this.state.records.has(id)
   }
 
-  /** For tests: the whole term index in plain data (see `TermIndex.snapshot`). */
+  /**
+   * For tests: the whole term index in plain data (see `TermIndex.snapshot`).
+   *
+   * @example expect(afterEdits.snapshot()).toEqual(freshBuild.snapshot())
+   */
   snapshot(): IndexSnapshot {
     return this.state.index.snapshot()
   }
@@ -156,14 +161,22 @@ export class ProcedureSearchIndex {
     this.pendingOps?.push({ kind: 'upsert', doc })
   }
 
-  /** Drops a procedure (retired, unpublished). Returns whether it was indexed. */
+  /**
+   * Drops a procedure (retired, unpublished). Returns whether it was indexed.
+   *
+   * @example search.discard(retired.id)
+   */
   discard(id: number): boolean {
     const had = this.discardFrom(this.state, id)
     this.pendingOps?.push({ kind: 'discard', id })
     return had
   }
 
-  /** Ids of indexed procedures filed under a symptom: the ones a change to it re-indexes. */
+  /**
+   * Ids of indexed procedures filed under a symptom: the ones a change to it re-indexes.
+   *
+   * @example search.documentsAffectedBySymptom('hum-noise') // [3, 9]
+   */
   documentsAffectedBySymptom(slug: string): number[] {
     return [...(this.state.bySymptom.get(slug) ?? [])].sort((a, b) => a - b)
   }

@@ -114,17 +114,18 @@ export class TermIndex {
     return this.count
   }
 
+  /** @example index.has(42) // true once add(42, …) ran, false after discard(42) */
   has(id: number): boolean {
     return this.shortIds.has(id)
   }
 
+  /**
+   * The short id scoring reports a document under.
+   *
+   * @example index.matchGroups(groups, 1).some(m => m.short === index.shortIdOf(42))
+   */
   shortIdOf(id: number): number | undefined {
     return this.shortIds.get(id)
-  }
-
-  /** The document id of a short id (-1 once discarded). */
-  idOf(short: number): number {
-    return this.ids[short] ?? -1
   }
 
   /**
@@ -184,7 +185,11 @@ export class TermIndex {
     this.bulk = null
   }
 
-  /** Removes a document and its postings. Returns whether it was indexed. */
+  /**
+   * Removes a document and its postings. Returns whether it was indexed.
+   *
+   * @example index.discard(42) // true; a second call false
+   */
   discard(id: number): boolean {
     const short = this.shortIds.get(id)
     if (short === undefined) return false
@@ -216,24 +221,24 @@ export class TermIndex {
     return true
   }
 
-  /** Indexes a document's new texts in place of its old ones (it gets a new short id). */
+  /**
+   * Indexes a document's new texts in place of its old ones (it gets a new short id).
+   *
+   * @example index.replace(42, textsOfTheNewRevision)
+   */
   replace(id: number, texts: readonly string[]): void {
     this.discard(id)
     this.add(id, texts)
   }
 
+  /** @example index.hasTerm('flicker') // some live document holds it, in some field */
   hasTerm(term: string): boolean {
     return this.terms.has(term)
   }
 
+  /** @example index.hasTermWithPrefix('flick') // true when 'flicker' is indexed */
   hasTermWithPrefix(prefix: string): boolean {
     return !this.terms.atPrefix(prefix).keys().next().done
-  }
-
-  /** Documents holding the term in the field. */
-  documentFrequency(term: string, field: string): number {
-    const f = this.fieldIds[field]
-    return f === undefined ? 0 : (this.terms.get(term)?.[f]?.size ?? 0)
   }
 
   /**
@@ -242,6 +247,8 @@ export class TermIndex {
    * there: its BM25 weight in that field is near zero (idf ≤ ln 1.25 ≈ 0.22), while visiting
    * its postings is most of a query's cost. Such a term is searched in the other fields only;
    * when it has none there it is no search term at all (null), like a stop word.
+   *
+   * @example index.fieldsFor('check', WORD_FIELDS) // every field but the body text, in a large library
    */
   fieldsFor(term: string, fields: readonly string[]): readonly string[] | null {
     const body = this.fields[this.bodyField]?.name
@@ -254,7 +261,7 @@ export class TermIndex {
   }
 
   /** Postings a query tree visits when scored in full: its cost. */
-  nodeCost(node: MatchNode): number {
+  protected nodeCost(node: MatchNode): number {
     if (node.kind !== 'term') return node.children.reduce((sum, child) => sum + this.nodeCost(child), 0)
     return this.derivedTerms(node).reduce((sum, d) => sum + d.postings, 0)
   }
@@ -303,6 +310,8 @@ export class TermIndex {
   /**
    * Which index terms of the query trees a document holds, and in which fields: what its
    * highlights mark.
+   *
+   * @example index.matchedTerms(plan, 42) // { flicker: ['symptoms', 'text'], dim: ['title'] }
    */
   matchedTerms(nodes: readonly MatchNode[], id: number): Record<string, string[]> {
     const info: Record<string, string[]> = {}
@@ -326,7 +335,12 @@ export class TermIndex {
     return info
   }
 
-  /** Every posting, field length and average, by document id: what two ways of indexing must agree on. */
+  /**
+   * Every posting, field length and average, by document id: what two ways of indexing must
+   * agree on.
+   *
+   * @example expect(bulkBuilt.snapshot()).toEqual(addedOneByOne.snapshot())
+   */
   snapshot(): IndexSnapshot {
     const postings: IndexSnapshot['postings'] = {}
     for (const [term, entry] of this.terms) {
