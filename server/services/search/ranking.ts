@@ -39,8 +39,8 @@ export function topMatches<T extends Ranked>(matches: T[], pageEnd: number, slac
  *
  * @example byCodesNamed(matches, m => m.codes, ['vr240']) // [[VR-240 procedures], [the rest]]
  */
-export function byCodesNamed<T>(matches: readonly T[], codesOf: (match: T) => ReadonlySet<string>, codes: readonly string[]): T[][] {
-  if (codes.length === 0) return [[...matches]]
+export function byCodesNamed<T>(matches: T[], codesOf: (match: T) => ReadonlySet<string>, codes: readonly string[]): T[][] {
+  if (codes.length === 0) return [matches]
   const tiers: T[][] = Array.from({ length: codes.length + 1 }, () => [])
   for (const m of matches) {
     const own = codesOf(m)
