@@ -9,8 +9,6 @@ import {
 import type { DraftContent } from '#shared/types/procedure'
 import type { AttachmentDto, DraftSavedDto, RevisionDetailDto } from '#shared/types/procedure-api'
 
-export { fieldId }
-
 /** How long the editor waits after the last keystroke before it saves. */
 export const SAVE_DELAY_MS = 1500
 
