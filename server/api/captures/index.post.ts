@@ -8,7 +8,8 @@ export default defineEventHandler(async (event) => {
   if (Number(getRequestHeader(event, 'content-length') ?? 0) > MAX_CAPTURE_BYTES + 64 * 1024) {
     throw createError({ statusCode: 413, message: 'The capture is larger than 50 MB.', data: { fields: { file: 'too large' } } })
   }
-  const parts = await readMultipartFormData(event).catch(() => {
+  const parts = await readMultipartFormData(event).catch((error: { statusCode?: number }) => {
+    if (error.statusCode === 413 || error.statusCode === 415) throw error
     throw createError({ statusCode: 400, message: 'Send the capture as multipart/form-data with the field "file".', data: { fields: { file: 'missing' } } })
   })
   const file = parts?.find(p => p.name === 'file' && p.filename !== undefined)

@@ -1,14 +1,12 @@
 import type { UploadedImageDto } from '#shared/types/procedure-api'
-import { MAX_IMAGE_BYTES, storeImage } from '../../services/uploads/images'
+import { storeImage } from '../../services/uploads/images'
 
 // Any signed-in role: authors place photos in steps, technicians attach bench photos to records.
+// The body's size is bounded before this runs (middleware/01.security.ts, utils/request-body.ts).
 export default defineEventHandler(async (event) => {
   const actor = await requireUser(event)
-  const declared = Number(getRequestHeader(event, 'content-length') ?? 0)
-  if (declared > MAX_IMAGE_BYTES + 64 * 1024) {
-    throw createError({ statusCode: 413, message: `The file is larger than ${MAX_IMAGE_BYTES / 1024 / 1024} MB.`, data: { fields: { file: 'too large' } } })
-  }
-  const parts = await readMultipartFormData(event).catch(() => {
+  const parts = await readMultipartFormData(event).catch((error: { statusCode?: number }) => {
+    if (error.statusCode === 413 || error.statusCode === 415) throw error
     throw createError({ statusCode: 400, message: 'Send the photo as multipart/form-data with the field "file".', data: { fields: { file: 'missing' } } })
   })
   const file = parts?.find(p => p.name === 'file' && p.filename !== undefined)
