@@ -2,7 +2,8 @@ import sharp from 'sharp'
 import { describe, expect, it } from 'vitest'
 import { Attachment } from '../../server/db'
 import { ApiClient, DEMO, signedIn } from '../helpers/api'
-import { testDb } from '../helpers/db'
+import { makeContent } from '../helpers/content'
+import { FACTORY_PASSWORD, makeUser, testDb } from '../helpers/db'
 import { services } from '../helpers/stack'
 
 // Bad files from the OWASP File Upload cheat sheet: wrong content behind an image name, a
@@ -91,5 +92,74 @@ describe('photo uploads', () => {
       await services.startObjectStore()
     }
     expect((await tech.post('/api/uploads', form(data, 'up.jpg'))).status).toBe(201)
+  })
+})
+
+describe('large photos', () => {
+  it('refuses a photo of more than 40 megapixels from its header, before decoding it', async () => {
+    const before = await count()
+    // 8000 × 6000 = 48 MP, a plain JPEG of a few hundred kilobytes.
+    const big = await sharp({ create: { width: 8000, height: 6000, channels: 3, background: { r: 200, g: 200, b: 190 } } }).jpeg({ quality: 40 }).toBuffer()
+    const res = await (await signedIn(DEMO.technician)).post('/api/uploads', form(big, 'fifty.jpg'))
+    expect(res.status).toBe(413)
+    expect(res.body.message).toMatch(/48\.0 megapixels .* up to 40 megapixels/)
+    expect(res.body.data.fields).toEqual({ file: 'over 40 megapixels' })
+    expect(await count()).toBe(before)
+  })
+
+  it('stores a large photo at most 4096 px on its long side', async () => {
+    const tech = await signedIn(DEMO.technician)
+    const wide = await sharp({ create: { width: 6000, height: 3000, channels: 3, background: { r: 60, g: 90, b: 120 } } }).jpeg({ quality: 60 }).toBuffer()
+    const res = await tech.post('/api/uploads', form(wide, 'wide.jpg'))
+    expect(res.status).toBe(201)
+    expect([res.body.width, res.body.height]).toEqual([4096, 2048])
+    const stored = Buffer.from(await (await fetch(`${tech.baseUrl}${res.body.url}`, { headers: { cookie: tech.cookie } })).arrayBuffer())
+    const meta = await sharp(stored).metadata()
+    expect([meta.width, meta.height]).toEqual([4096, 2048])
+  })
+})
+
+describe('who may open a file', () => {
+  const get = async (client: ApiClient, url: string) => (await fetch(`${client.baseUrl}${url}`, { headers: { cookie: client.cookie } })).status
+
+  it('a draft\'s step image: its author and editors only, until the revision is submitted and published', async () => {
+    const author = await signedIn(DEMO.author)
+    const editor = await signedIn(DEMO.editor)
+    const tech = await signedIn(DEMO.technician)
+    const otherAuthor = await new ApiClient().login((await makeUser({ role: 'author' })).email, FACTORY_PASSWORD)
+    const image = (await author.post('/api/uploads', form(await photo(), 'draft.jpg'))).body
+    const content = makeContent()
+    content.steps[0]!.imageIds = [image.id]
+    const created = await author.post('/api/procedures', { content })
+    expect(created.status).toBe(201)
+    const revisionId = created.body.revision.id
+    for (const url of [image.url, image.thumbnailUrl]) {
+      expect(await get(tech, url), `technician, ${url}`).toBe(404)
+      expect(await get(otherAuthor, url), `another author, ${url}`).toBe(404)
+      expect(await get(author, url), `its author, ${url}`).toBe(200)
+      expect(await get(editor, url), `an editor, ${url}`).toBe(200)
+    }
+    // Ids are sequential: the next and previous ids answer the same as a hidden one.
+    expect(await get(tech, `/api/files/${image.id + 1000}`)).toBe(404)
+    expect((await tech.patch(`/api/uploads/${image.id}`, { caption: 'mine now' })).status).toBe(404)
+
+    expect((await author.post(`/api/revisions/${revisionId}/submit`)).status).toBe(200)
+    expect(await get(otherAuthor, image.url), 'submitted: authors see it').toBe(200)
+    expect(await get(tech, image.url), 'not yet published').toBe(404)
+    expect((await editor.post(`/api/revisions/${revisionId}/approve`)).status).toBe(200)
+    expect(await get(tech, image.url), 'published: everyone').toBe(200)
+    expect(await get(tech, image.thumbnailUrl)).toBe(200)
+  })
+
+  it('a bench photo: its uploader until it is on a record, then the whole team (records are shared)', async () => {
+    const ade = await new ApiClient().login((await makeUser()).email, FACTORY_PASSWORD)
+    const mika = await new ApiClient().login((await makeUser()).email, FACTORY_PASSWORD)
+    const image = (await ade.post('/api/uploads', form(await photo(), 'bench.jpg'))).body
+    expect(await get(ade, image.url)).toBe(200)
+    expect(await get(mika, image.url)).toBe(404)
+    const record = (await ade.post('/api/records', { procedureSlug: 'vr240-stuck-at-full' })).body.record
+    expect((await ade.patch(`/api/records/${record.id}`, { version: record.version, photoIds: [image.id] })).status).toBe(200)
+    expect(await get(mika, image.url)).toBe(200)
+    expect(await get(mika, image.thumbnailUrl)).toBe(200)
   })
 })

@@ -4,12 +4,13 @@ import { openAttachment } from '../../services/uploads/attachments'
 const Params = z.object({ id: z.coerce.number().int().positive() })
 const Query = z.object({ size: z.enum(['full', 'thumb']).default('full') })
 
-// Streams an object to signed-in users under a name of our own, never the uploader's file name.
+// Streams a file to those who may see what it belongs to (services/uploads/visibility.ts), under a
+// name of our own, never the uploader's file name.
 export default defineEventHandler(async (event) => {
-  await requireUser(event)
+  const user = await requireUser(event)
   const { id } = await getValidatedRouterParams(event, parseWith(Params))
   const { size } = await getValidatedQuery(event, parseWith(Query))
-  const file = await openAttachment(id, size, useObjectStore())
+  const file = await openAttachment(id, size, user, useObjectStore())
   setResponseHeaders(event, {
     'Content-Type': file.mime,
     'Content-Disposition': `${file.mime.startsWith('image/') ? 'inline' : 'attachment'}; filename="${file.filename}"`,

@@ -6,6 +6,7 @@ import * as m0004 from './0004-repair-records'
 import * as m0005 from './0005-captures'
 import * as m0006 from './0006-cause-counts'
 import * as m0007 from './0007-capture-job'
+import * as m0008 from './0008-attachment-uses'
 
 export interface Migration {
   name: string
@@ -22,4 +23,5 @@ export const MIGRATIONS: Migration[] = [
   { name: '0005-captures', ...m0005 },
   { name: '0006-cause-counts', ...m0006 },
   { name: '0007-capture-job', ...m0007 },
+  { name: '0008-attachment-uses', ...m0008 },
 ]

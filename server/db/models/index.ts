@@ -1,5 +1,6 @@
-import type { Sequelize } from 'sequelize'
+import type { Sequelize, Transaction } from 'sequelize'
 import { Attachment } from './attachment'
+import { AttachmentUse } from './attachment-use'
 import { AuditEvent } from './audit-event'
 import { Capture } from './capture'
 import { ChangeLogEntry } from './change-log-entry'
@@ -18,11 +19,11 @@ import { StepFlag } from './step-flag'
 import { Symptom } from './symptom'
 import { User } from './user'
 
-export { Attachment, AuditEvent, Capture, SignatureReference, ChangeLogEntry, DeviceType, Invitation, LoginFailure, OutboxMessage, Procedure, RecordAmendment, RecordSymptom, RepairRecord, ReviewComment, Revision, StepFlag, Symptom, User }
+export { Attachment, AttachmentUse, AuditEvent, Capture, SignatureReference, ChangeLogEntry, DeviceType, Invitation, LoginFailure, OutboxMessage, Procedure, RecordAmendment, RecordSymptom, RepairRecord, ReviewComment, Revision, StepFlag, Symptom, User }
 
 /** Binds every model to the connection and declares the associations (once per process). */
 export function initModels(sequelize: Sequelize) {
-  for (const model of [ChangeLogEntry, User, Invitation, LoginFailure, AuditEvent, OutboxMessage, DeviceType, Symptom, Procedure, Revision, ReviewComment, Attachment, RepairRecord, RecordSymptom, RecordAmendment, StepFlag, Capture, SignatureReference]) {
+  for (const model of [ChangeLogEntry, User, Invitation, LoginFailure, AuditEvent, OutboxMessage, DeviceType, Symptom, Procedure, Revision, ReviewComment, Attachment, AttachmentUse, RepairRecord, RecordSymptom, RecordAmendment, StepFlag, Capture, SignatureReference]) {
     model.initModel(sequelize)
   }
 
@@ -36,4 +37,16 @@ export function initModels(sequelize: Sequelize) {
   Revision.hasMany(ReviewComment, { as: 'comments', foreignKey: 'revisionId' })
   ReviewComment.belongsTo(User, { as: 'author', foreignKey: 'authorId' })
   SignatureReference.belongsTo(Procedure, { as: 'procedure', foreignKey: 'procedureId' })
+
+  // The files a revision's steps or a record show, kept beside them in the same transaction.
+  type Saved = { fields?: string[], transaction?: Transaction | null }
+  const stepImages = (rev: Revision) => (rev.content?.steps ?? []).flatMap(s => s.imageIds ?? [])
+  Revision.addHook('afterCreate', (rev: Revision, o: Saved) => AttachmentUse.replaceFor('revision', rev.id, stepImages(rev), o.transaction))
+  Revision.addHook('afterUpdate', async (rev: Revision, o: Saved) => {
+    if (o.fields?.includes('content')) await AttachmentUse.replaceFor('revision', rev.id, stepImages(rev), o.transaction)
+  })
+  RepairRecord.addHook('afterCreate', (r: RepairRecord, o: Saved) => AttachmentUse.replaceFor('record', r.id, r.photoIds ?? [], o.transaction))
+  RepairRecord.addHook('afterUpdate', async (r: RepairRecord, o: Saved) => {
+    if (o.fields?.includes('photoIds')) await AttachmentUse.replaceFor('record', r.id, r.photoIds, o.transaction)
+  })
 }

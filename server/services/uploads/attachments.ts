@@ -1,9 +1,10 @@
 import type { Readable } from 'node:stream'
 import { roleAtLeast } from '../../../shared/types/roles'
 import type { AttachmentDto } from '../../../shared/types/procedure-api'
-import { Attachment, type User } from '../../db'
-import { forbidden, notFound } from '../errors'
+import type { Attachment, User } from '../../db'
+import { forbidden } from '../errors'
 import type { ObjectStore } from '../storage'
+import { findVisibleAttachment } from './visibility'
 
 // Stored files (photos, capture exports) as the API shows them: always through /api/files/[id],
 // never by their object key or the uploader's file name.
@@ -32,10 +33,9 @@ export interface OpenedFile {
   contentLength?: number
 }
 
-/** The file itself, or its thumbnail when asked for one and there is one. */
-export async function openAttachment(id: number, size: 'full' | 'thumb', store: ObjectStore): Promise<OpenedFile> {
-  const row = await Attachment.findByPk(id)
-  if (!row) throw notFound('file')
+/** The file itself, or its thumbnail when asked for one and there is one, if this person may see it. */
+export async function openAttachment(id: number, size: 'full' | 'thumb', user: User, store: ObjectStore): Promise<OpenedFile> {
+  const row = await findVisibleAttachment(id, user)
   const thumb = size === 'thumb' && row.thumbnailKey
   const object = await store.get(thumb ? row.thumbnailKey! : row.objectKey)
   return {
@@ -46,10 +46,9 @@ export async function openAttachment(id: number, size: 'full' | 'thumb', store: 
   }
 }
 
-/** Captions a photo: its uploader or an editor. */
+/** Captions a photo: its uploader or an editor, of a photo they can see. */
 export async function captionAttachment(id: number, caption: string, actor: User): Promise<{ id: number, caption: string }> {
-  const attachment = await Attachment.findByPk(id)
-  if (!attachment) throw notFound('file')
+  const attachment = await findVisibleAttachment(id, actor)
   if (attachment.uploadedById !== actor.id && !roleAtLeast(actor.role, 'editor')) throw forbidden('Only the person who uploaded a photo (or an editor) can caption it.')
   await attachment.update({ caption })
   return { id: attachment.id, caption: attachment.caption }

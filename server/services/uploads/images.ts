@@ -8,6 +8,13 @@ import { ObjectStoreUnavailable, type ObjectStore } from '../storage'
 import { toAttachmentDto } from './attachments'
 
 export const MAX_IMAGE_BYTES = 15 * 1024 * 1024
+/**
+ * Photos with more pixels are refused before they are decoded: decoding costs about 4 bytes a
+ * pixel, so 40 MP is some 160 MB held for the length of one upload (a bench photo needs far less).
+ */
+export const MAX_IMAGE_PIXELS = 40_000_000
+/** Stored photos are at most this many pixels on their long side: plenty for a bench photo zoomed in. */
+export const STORED_LONG_SIDE = 4096
 export const THUMB_PX = 480
 
 type ImageType = 'jpeg' | 'png' | 'webp'
@@ -22,23 +29,35 @@ export function sniffImage(buf: Buffer): ImageType | null {
 }
 
 /**
- * Stores a bench photo: checks size and magic bytes, decodes it fully with sharp (a polyglot or
- * truncated file fails here), re-encodes it so EXIF and GPS are gone (orientation applied first),
- * makes a thumbnail, writes both objects, and only then the row. A failed store leaves no row
- * and no object.
+ * Stores a bench photo: checks size, magic bytes and pixel count (from the header, before
+ * decoding), decodes it fully with sharp (a polyglot or truncated file fails here), scales it to
+ * at most STORED_LONG_SIDE on the long side and re-encodes it so EXIF and GPS are gone
+ * (orientation applied first), makes a thumbnail from that, writes both objects, and only then
+ * the row. A failed store leaves no row and no object.
  */
 export async function storeImage(file: { data: Buffer, filename?: string }, actor: User, store: ObjectStore): Promise<AttachmentDto> {
   if (!file.data.length) throw invalid('The file is empty.', { file: 'is empty' })
   if (file.data.length > MAX_IMAGE_BYTES) throw tooLarge(`The file is larger than ${MAX_IMAGE_BYTES / 1024 / 1024} MB.`, { file: 'too large' })
   const type = sniffImage(file.data)
   if (!type) throw unsupported('Only JPEG, PNG and WebP photos can be uploaded (checked from the file\'s content).', { file: 'not a JPEG, PNG or WebP image' })
+  const header = await sharp(file.data).metadata().catch(() => null)
+  if (!header?.width || !header.height) throw invalid('The image could not be read: it is damaged or not really an image.', { file: 'unreadable image' })
+  const pixels = header.width * header.height
+  if (pixels > MAX_IMAGE_PIXELS) {
+    throw tooLarge(
+      `The photo has ${(pixels / 1e6).toFixed(1)} megapixels (${header.width} × ${header.height}); photos of up to ${MAX_IMAGE_PIXELS / 1e6} megapixels are accepted. Take it at a lower resolution or scale it down first.`,
+      { file: `over ${MAX_IMAGE_PIXELS / 1e6} megapixels` },
+    )
+  }
   let full: { data: Buffer, info: { width: number, height: number } }
   let thumb: Buffer
   try {
-    const base = sharp(file.data, { failOn: 'error', limitInputPixels: 80_000_000 }).rotate()
-    const encoded = type === 'jpeg' ? base.clone().jpeg({ quality: 86, mozjpeg: true }) : type === 'png' ? base.clone().png() : base.clone().webp({ quality: 86 })
+    const scaled = sharp(file.data, { failOn: 'error', limitInputPixels: MAX_IMAGE_PIXELS })
+      .rotate()
+      .resize({ width: STORED_LONG_SIDE, height: STORED_LONG_SIDE, fit: 'inside', withoutEnlargement: true })
+    const encoded = type === 'jpeg' ? scaled.jpeg({ quality: 86, mozjpeg: true }) : type === 'png' ? scaled.png() : scaled.webp({ quality: 86 })
     full = await encoded.toBuffer({ resolveWithObject: true })
-    thumb = await base.clone().resize({ width: THUMB_PX, height: THUMB_PX, fit: 'inside', withoutEnlargement: true }).jpeg({ quality: 80 }).toBuffer()
+    thumb = await sharp(full.data).resize({ width: THUMB_PX, height: THUMB_PX, fit: 'inside', withoutEnlargement: true }).jpeg({ quality: 80 }).toBuffer()
   }
   catch {
     throw invalid('The image could not be read: it is damaged or not really an image.', { file: 'unreadable image' })
