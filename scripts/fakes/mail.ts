@@ -34,6 +34,7 @@ const server = new SMTPServer({
           to: session.envelope.rcptTo.map(r => r.address),
           subject: parsed.subject ?? '',
           text: parsed.text ?? '',
+          html: typeof parsed.html === 'string' ? parsed.html : null,
           messageId: parsed.messageId ?? null,
         }
         writeFileSync(join(dir, `${id}.eml`), raw)

@@ -54,6 +54,8 @@ export interface AdminUserDto extends UserDto {
   lastLoginAt: string | null
   createdAt: string
   invitationPending: boolean
+  /** The latest invitation of someone who has not joined yet (null once they have). */
+  invitation: { status: Exclude<InvitationStatus, 'used' | 'unknown'>, sentAt: string, expiresAt: string } | null
 }
 
 /** GET /api/me, and signing in (POST /api/auth/login, /api/invitations/accept): who is signed in. */
@@ -65,10 +67,14 @@ export interface SignedOutDto { ok: true }
 /** PATCH /api/users/[id] */
 export interface AdminUserSavedDto { user: AdminUserDto }
 
-/** POST /api/users/invite */
-export interface InvitationSentDto { user: UserDto, expiresAt: string }
+/** POST /api/users/invite, POST /api/users/[id]/invitation (a new link; `replaced` earlier links stopped working) */
+export interface InvitationSentDto { user: UserDto, expiresAt: string, replaced?: number }
 
-export type InvitationStatus = 'valid' | 'used' | 'expired' | 'unknown'
+/** DELETE /api/users/[id]/invitation */
+export interface InvitationWithdrawnDto { user: AdminUserDto }
+
+/** `withdrawn`: by an admin, or by a role change or deactivation before it was accepted. */
+export type InvitationStatus = 'valid' | 'used' | 'expired' | 'withdrawn' | 'unknown'
 
 /** GET /api/invitations/[token]: the status, and for a valid link what the acceptance page shows. */
 export interface InvitationViewDto {

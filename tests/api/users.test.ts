@@ -80,6 +80,96 @@ describe('invitations', () => {
   })
 })
 
+/** Invites a fresh address as `role` and answers its user id and the link's token from the mail. */
+async function invited(admin: ApiClient, role: string, label: string) {
+  const email = `${label}-${randomBytes(3).toString('hex')}@test.example`
+  const sent = await admin.post('/api/users/invite', { email, role })
+  expect(sent.status, JSON.stringify(sent.body)).toBe(201)
+  const mail = await waitForMail(m => m.to.includes(email))
+  return { email, id: sent.body.user.id as number, token: linkIn(mail.text)![1]!, mail }
+}
+
+describe('invitations and the admin\'s later decisions', () => {
+  it('sends the link as a link: an HTML part beside the text part, both with the same address', async () => {
+    const admin = await signedIn(DEMO.admin)
+    const { mail, token } = await invited(admin, 'technician', 'html')
+    expect(mail.html, 'the message has an HTML part').toBeTruthy()
+    const href = mail.html!.match(/<a href="([^"]+)"/)?.[1]
+    expect(href).toMatch(new RegExp(`/invite/${token}$`))
+    expect(mail.text).toContain(href)
+  })
+
+  it('a deactivated invitee cannot activate the account by accepting', async () => {
+    const admin = await signedIn(DEMO.admin)
+    const { email, id, token } = await invited(admin, 'author', 'deactivated')
+    expect((await admin.patch(`/api/users/${id}`, { active: false })).status).toBe(200)
+    expect((await new ApiClient().get(`/api/invitations/${token}`)).body.status).toBe('withdrawn')
+    const accept = await new ApiClient().post('/api/invitations/accept', { token, name: 'Let Me In', password: 'a-long-enough-passphrase' })
+    expect(accept.status).toBe(410)
+    testDb()
+    const user = await User.findByPk(id)
+    expect([user!.active, user!.passwordHash]).toEqual([false, null])
+    expect((await new ApiClient().post('/api/auth/login', { email, password: 'a-long-enough-passphrase' })).status).toBe(401)
+  })
+
+  it('an invitee demoted before accepting does not get the invited role back', async () => {
+    const admin = await signedIn(DEMO.admin)
+    const { id, token } = await invited(admin, 'editor', 'demoted')
+    expect((await admin.patch(`/api/users/${id}`, { role: 'technician' })).status).toBe(200)
+    const accept = await new ApiClient().post('/api/invitations/accept', { token, name: 'Was Editor', password: 'a-long-enough-passphrase' })
+    expect(accept.status).toBe(410)
+    expect(accept.body.message).toMatch(/withdrawn/)
+    testDb()
+    expect((await User.findByPk(id))!.role).toBe('technician')
+    // A new link carries the role the admin gave last.
+    const resent = await admin.post(`/api/users/${id}/invitation`)
+    expect(resent.status).toBe(201)
+    const mail = await waitForMail(m => m.to.includes(resent.body.user.email) && linkIn(m.text)?.[1] !== token)
+    const fresh = linkIn(mail.text)![1]!
+    const client = new ApiClient()
+    expect((await client.post('/api/invitations/accept', { token: fresh, name: 'Now Technician', password: 'a-long-enough-passphrase' })).status).toBe(200)
+    expect((await client.get('/api/me')).body.user.role).toBe('technician')
+  })
+
+  it('does not silently send a second invitation: it says when the first went out and offers a new link or withdrawing it', async () => {
+    const admin = await signedIn(DEMO.admin)
+    const { email, id, token } = await invited(admin, 'technician', 'twice')
+    const again = await admin.post('/api/users/invite', { email, role: 'technician' })
+    expect(again.status).toBe(409)
+    expect(again.body.message).toMatch(/was invited on .* send a new link, or withdraw/)
+    expect(again.body.data).toMatchObject({ fields: { email: 'already invited' }, invited: { userId: id } })
+    testDb()
+    expect(await Invitation.count({ where: { userId: id } }), 'no second invitation was made').toBe(1)
+
+    const resent = await admin.post(`/api/users/${id}/invitation`)
+    expect(resent.status).toBe(201)
+    expect(resent.body.replaced).toBe(1)
+    expect((await new ApiClient().get(`/api/invitations/${token}`)).body.status).toBe('withdrawn')
+    const listed = (await admin.get('/api/users')).body.data.find((u: { id: number }) => u.id === id)
+    expect(listed.invitation).toMatchObject({ status: 'valid' })
+
+    const withdrawn = await admin.delete(`/api/users/${id}/invitation`)
+    expect(withdrawn.status).toBe(200)
+    expect(withdrawn.body.user.invitation).toMatchObject({ status: 'withdrawn' })
+    expect((await admin.delete(`/api/users/${id}/invitation`)).status).toBe(409)
+    // Once withdrawn, inviting the address again is a fresh invitation.
+    expect((await admin.post('/api/users/invite', { email, role: 'author' })).status).toBe(201)
+  })
+
+  it('refuses a new link for someone who has joined, or who is deactivated', async () => {
+    const admin = await signedIn(DEMO.admin)
+    const joined = await makeUser()
+    expect((await admin.post(`/api/users/${joined.id}/invitation`)).status).toBe(409)
+    expect((await admin.delete(`/api/users/${joined.id}/invitation`)).status).toBe(409)
+    const { id } = await invited(admin, 'technician', 'parked')
+    await admin.patch(`/api/users/${id}`, { active: false })
+    const res = await admin.post(`/api/users/${id}/invitation`)
+    expect(res.status).toBe(409)
+    expect(res.body.message).toMatch(/reactivate/)
+    expect((await admin.post('/api/users/987654/invitation')).status).toBe(404)
+  })
+})
+
 describe('user administration', () => {
   it('lists users for admins only', async () => {
     const res = await (await signedIn(DEMO.admin)).get('/api/users')

@@ -17,7 +17,7 @@ export const services = {
   appPid: () => readPid(appFiles(testProfile()).pid),
 }
 
-export interface CapturedMessage { id: string, to: string[], subject: string, text: string, receivedAt: string }
+export interface CapturedMessage { id: string, to: string[], subject: string, text: string, html: string | null, receivedAt: string }
 
 export function capturedMail(): CapturedMessage[] {
   const dir = process.env.NUXT_MAIL_CAPTURE_DIR ?? join(testProfile().dataDir, 'mail')

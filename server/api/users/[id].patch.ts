@@ -1,6 +1,6 @@
 import { z } from 'zod'
 import { UserPatchBody, type AdminUserSavedDto } from '#shared/types/auth'
-import { toAdminUserDto, updateUser } from '../../services/accounts/users'
+import { adminUserDto, updateUser } from '../../services/accounts/users'
 
 const Params = z.object({ id: z.coerce.number().int().positive() })
 
@@ -9,5 +9,5 @@ export default defineEventHandler(async (event) => {
   const { id } = await getValidatedRouterParams(event, parseWith(Params))
   const patch = await readValidatedBody(event, parseWith(UserPatchBody))
   const user = await updateUser(id, patch, actor)
-  return { user: toAdminUserDto(user, false) } satisfies AdminUserSavedDto
+  return { user: await adminUserDto(user) } satisfies AdminUserSavedDto
 })

@@ -7,6 +7,7 @@ import * as m0005 from './0005-captures'
 import * as m0006 from './0006-cause-counts'
 import * as m0007 from './0007-capture-job'
 import * as m0008 from './0008-attachment-uses'
+import * as m0009 from './0009-invitations-withdrawn'
 
 export interface Migration {
   name: string
@@ -24,4 +25,5 @@ export const MIGRATIONS: Migration[] = [
   { name: '0006-cause-counts', ...m0006 },
   { name: '0007-capture-job', ...m0007 },
   { name: '0008-attachment-uses', ...m0008 },
+  { name: '0009-invitations-withdrawn', ...m0009 },
 ]

@@ -10,6 +10,8 @@ export class Invitation extends Model<InferAttributes<Invitation>, InferCreation
   declare invitedById: number
   declare expiresAt: Date
   declare acceptedAt: Date | null
+  /** Set when an admin withdrew it, or changed the invitee's role or deactivated them before they accepted. */
+  declare revokedAt: CreationOptional<Date | null>
   declare createdAt: CreationOptional<Date>
   declare updatedAt: CreationOptional<Date>
 
@@ -22,6 +24,7 @@ export class Invitation extends Model<InferAttributes<Invitation>, InferCreation
       invitedById: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
       expiresAt: { type: DataTypes.DATE, allowNull: false },
       acceptedAt: { type: DataTypes.DATE, allowNull: true },
+      revokedAt: { type: DataTypes.DATE, allowNull: true },
       createdAt: DataTypes.DATE,
       updatedAt: DataTypes.DATE,
     }, { sequelize, tableName: 'invitations' })

@@ -14,6 +14,8 @@ export class OutboxMessage extends Model<InferAttributes<OutboxMessage>, InferCr
   declare toAddress: string
   declare subject: string
   declare textBody: string
+  /** An HTML part sent beside the text, when the message has links worth a click. */
+  declare htmlBody: CreationOptional<string | null>
   declare status: CreationOptional<OutboxState>
   declare attempts: CreationOptional<number>
   declare nextAttemptAt: CreationOptional<Date>
@@ -30,6 +32,7 @@ export class OutboxMessage extends Model<InferAttributes<OutboxMessage>, InferCr
       toAddress: { type: DataTypes.STRING(254), allowNull: false },
       subject: { type: DataTypes.STRING(250), allowNull: false },
       textBody: { type: DataTypes.TEXT, allowNull: false },
+      htmlBody: { type: DataTypes.TEXT, allowNull: true },
       status: { type: DataTypes.ENUM(...OUTBOX_STATES), allowNull: false, defaultValue: 'pending' },
       attempts: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false, defaultValue: 0 },
       nextAttemptAt: { type: DataTypes.DATE, allowNull: false, defaultValue: DataTypes.NOW },

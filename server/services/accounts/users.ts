@@ -1,37 +1,49 @@
-import { Op } from 'sequelize'
 import type { AdminUserDto, UserDto } from '../../../shared/types/auth'
 import type { Role } from '../../../shared/types/roles'
-import { Invitation, User, inTransaction } from '../../db'
+import { type Invitation, User, inTransaction } from '../../db'
 import { recordAudit } from '../audit/audit-log'
 import { conflict, notFound } from '../errors'
+import { latestInvitations, revokeOpenInvitations } from './invitations'
 
 export function toUserDto(u: User): UserDto {
   return { id: u.id, email: u.email, name: u.name, role: u.role }
 }
 
-export function toAdminUserDto(u: User, pendingInvite: boolean): AdminUserDto {
+/** A person as the admin sees them, with their latest invitation when they have not joined. */
+export function toAdminUserDto(u: User, latest: Invitation | undefined): AdminUserDto {
+  const invitation: AdminUserDto['invitation'] = !u.passwordHash && latest && !latest.acceptedAt
+    ? {
+        status: latest.revokedAt || !u.active ? 'withdrawn' : latest.expiresAt.getTime() <= Date.now() ? 'expired' : 'valid',
+        sentAt: latest.createdAt.toISOString(),
+        expiresAt: latest.expiresAt.toISOString(),
+      }
+    : null
   return {
     ...toUserDto(u),
     active: u.active,
     lastLoginAt: u.lastLoginAt?.toISOString() ?? null,
     createdAt: u.createdAt.toISOString(),
-    invitationPending: pendingInvite,
+    invitationPending: invitation?.status === 'valid',
+    invitation,
   }
 }
 
+/** One person as the admin's list shows them. */
+export async function adminUserDto(u: User): Promise<AdminUserDto> {
+  return toAdminUserDto(u, (await latestInvitations([u.id])).get(u.id))
+}
+
 export async function listUsers(): Promise<AdminUserDto[]> {
-  const [users, pending] = await Promise.all([
-    User.findAll({ order: [['active', 'DESC'], ['role', 'DESC'], ['name', 'ASC']] }),
-    Invitation.findAll({ where: { acceptedAt: null, expiresAt: { [Op.gt]: new Date() } }, attributes: ['userId'], raw: true }),
-  ])
-  const pendingIds = new Set(pending.map(p => p.userId))
-  return users.map(u => toAdminUserDto(u, pendingIds.has(u.id) && !u.passwordHash))
+  const users = await User.findAll({ order: [['active', 'DESC'], ['role', 'DESC'], ['name', 'ASC']] })
+  const latest = await latestInvitations(users.filter(u => !u.passwordHash).map(u => u.id))
+  return users.map(u => toAdminUserDto(u, latest.get(u.id)))
 }
 
 /**
- * Role and activation changes by an admin. Both end the user's sessions. The last active admin
- * can be neither demoted nor deactivated: the check runs under row locks so two admins demoting
- * each other at once cannot both succeed.
+ * Role and activation changes by an admin. Both end the user's sessions, and both withdraw an
+ * invitation not yet accepted (its link carries the decision taken before). The last active
+ * admin can be neither demoted nor deactivated: the check runs under row locks so two admins
+ * demoting each other at once cannot both succeed.
  */
 export async function updateUser(targetId: number, patch: { role?: Role, active?: boolean, name?: string }, actor: User): Promise<User> {
   return await inTransaction(async (transaction) => {
@@ -47,6 +59,7 @@ export async function updateUser(targetId: number, patch: { role?: Role, active?
       )
     }
     const endsSessions = (patch.role !== undefined && patch.role !== user.role) || (patch.active !== undefined && patch.active !== user.active)
+    if (endsSessions) await revokeOpenInvitations(user.id, transaction)
     await user.update({
       ...patch,
       sessionVersion: endsSessions ? user.sessionVersion + 1 : user.sessionVersion,

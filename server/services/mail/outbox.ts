@@ -8,6 +8,8 @@ export interface OutgoingMail {
   to: string
   subject: string
   text: string
+  /** The same message as HTML, sent as an alternative part beside the text. */
+  html?: string
 }
 
 /**
@@ -22,6 +24,7 @@ export async function queueMail(mail: OutgoingMail | OutgoingMail[], transaction
     toAddress: m.to,
     subject: m.subject.slice(0, 250),
     textBody: m.text,
+    htmlBody: m.html ?? null,
     lastError: null,
     sentAt: null,
     lockedUntil: null,
@@ -68,7 +71,7 @@ export async function deliverDueMail(transport: Transporter, opts: { from: strin
   for (const row of claimed) {
     let sendError: unknown
     try {
-      await transport.sendMail({ from: opts.from, to: row.toAddress, subject: row.subject, text: row.textBody, headers: { 'X-Benchlore-Kind': row.kind } })
+      await transport.sendMail({ from: opts.from, to: row.toAddress, subject: row.subject, text: row.textBody, ...(row.htmlBody ? { html: row.htmlBody } : {}), headers: { 'X-Benchlore-Kind': row.kind } })
     }
     catch (error) {
       sendError = error ?? new Error('sending failed')
