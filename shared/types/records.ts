@@ -27,6 +27,13 @@ export const StepEntry = z.object({
   done: z.boolean().default(false),
 })
 
+/** A save names only the parts of a step it changes; the others keep their stored values. */
+export const StepPatch = z.object({
+  value: z.string().max(60),
+  note: z.string().max(4000),
+  done: z.boolean(),
+}).partial()
+
 export const RecordCreateBody = z.object({
   procedureSlug: z.string().trim().min(1).max(100).optional(),
   deviceType: slug.optional(),
@@ -42,7 +49,7 @@ export const RecordPatchBody = z.object({
   version: z.number().int().positive(),
   unit: z.object({ model: z.string().trim().max(120), serial: z.string().trim().max(120), jobRef: z.string().trim().max(80) }).partial().optional(),
   symptoms: z.array(slug).max(20).optional(),
-  steps: z.record(z.string().max(40), StepEntry).optional(),
+  steps: z.record(z.string().max(40), StepPatch).optional(),
   notes: z.string().max(8000).optional(),
   photoIds: z.array(z.number().int().positive()).max(24).optional(),
 })
@@ -83,6 +90,8 @@ export const StepFlagBody = z.object({
 })
 
 export const RecordListQuery = z.object({
+  /** Words to find in the unit's model, serial or job reference. */
+  q: z.string().trim().max(120).optional(),
   deviceType: slug.optional(),
   symptom: slug.optional(),
   cause: z.string().trim().max(160).optional(),

@@ -1,7 +1,9 @@
 import { parse } from 'csv-parse/sync'
+import sharp from 'sharp'
 import { describe, expect, it } from 'vitest'
 import { Procedure, RepairRecord, Revision } from '../../server/db'
 import { ApiClient, DEMO, signedIn } from '../helpers/api'
+import { makeContent } from '../helpers/content'
 import { FACTORY_PASSWORD, makeUser, testDb } from '../helpers/db'
 import { waitForMail } from '../helpers/stack'
 
@@ -98,6 +100,58 @@ describe('repair records', () => {
   })
 })
 
+describe('what may be linked to a record (OWASP WSTG-ATHZ-04)', () => {
+  async function upload(client: ApiClient) {
+    const fd = new FormData()
+    fd.append('file', new Blob([await sharp({ create: { width: 64, height: 48, channels: 3, background: { r: 9, g: 9, b: 9 } } }).jpeg().toBuffer()], { type: 'image/jpeg' }), 'p.jpg')
+    const res = await client.post('/api/uploads', fd)
+    expect(res.status).toBe(201)
+    return res.body.id as number
+  }
+
+  it('takes only photos the technician uploaded: not a colleague\'s, not a draft\'s step image', async () => {
+    const ade = await new ApiClient().login((await makeUser()).email, FACTORY_PASSWORD)
+    const mika = await new ApiClient().login((await makeUser()).email, FACTORY_PASSWORD)
+    const author = await signedIn(DEMO.author)
+    const mine = await upload(ade)
+    const colleagues = await upload(mika)
+    const draftImage = await upload(author)
+    const content = makeContent()
+    content.steps[0]!.imageIds = [draftImage]
+    expect((await author.post('/api/procedures', { content })).status).toBe(201)
+    const record = await start(ade)
+    for (const foreign of [colleagues, draftImage, 999_999]) {
+      const res = await ade.patch(`/api/records/${record.id}`, { version: record.version, photoIds: [mine, foreign] })
+      expect(res.status, `photo ${foreign}`).toBe(422)
+      expect(res.body.data.fields).toEqual({ 'photoIds.1': 'not a photo you uploaded' })
+    }
+    const close = await ade.post(`/api/records/${record.id}/close`, { confirmedCause: null, outcome: 'no_fault_found', minutes: 5, photoIds: [colleagues] })
+    expect(close.status).toBe(422)
+    const saved = await ade.patch(`/api/records/${record.id}`, { version: record.version, photoIds: [mine] })
+    expect(saved.status).toBe(200)
+    expect(saved.body.record.photos.map((p: { id: number }) => p.id)).toEqual([mine])
+    // An editor saving the record keeps the technician's photos; a photo of their own may join them.
+    const editor = await signedIn(DEMO.editor)
+    const editorsPhoto = await upload(editor)
+    const byEditor = await editor.patch(`/api/records/${record.id}`, { version: saved.body.record.version, photoIds: [mine, editorsPhoto] })
+    expect(byEditor.status).toBe(200)
+    const closed = await ade.post(`/api/records/${record.id}/close`, { confirmedCause: null, outcome: 'no_fault_found', minutes: 5, photoIds: [mine] })
+    expect(closed.status).toBe(200)
+    const amend = await ade.post(`/api/records/${record.id}/amendments`, { reason: 'Add the other photo', changes: { photoIds: [mine, colleagues] } })
+    expect(amend.status).toBe(422)
+  })
+
+  it('keeps what a save does not name: a step saved with only "done" keeps its reading and note', async () => {
+    const tech = await signedIn(DEMO.technician)
+    const record = await start(tech)
+    const key = record.guide.content.steps[0].key
+    const first = await tech.patch(`/api/records/${record.id}`, { version: record.version, steps: { [key]: { value: '0.58 V', note: 'both legs' } } })
+    expect(first.status).toBe(200)
+    const second = await tech.patch(`/api/records/${record.id}`, { version: first.body.record.version, steps: { [key]: { done: true } } })
+    expect(second.body.record.steps[key]).toMatchObject({ value: '0.58 V', note: 'both legs', done: true })
+  })
+})
+
 describe('record lists and export', () => {
   it('filters on the server and exports the same rows as CSV', async () => {
     const tech = await signedIn(DEMO.technician)
@@ -112,11 +166,89 @@ describe('record lists and export', () => {
     expect(rows.map(r => Number(r.id)).sort((a, b) => a - b)).toEqual(first.body.data.map((r: { id: number }) => r.id).sort((a: number, b: number) => a - b))
     const byId = new Map(first.body.data.map((r: { id: number }) => [r.id, r]))
     for (const row of rows) {
-      const api = byId.get(Number(row.id)) as { minutes: number, confirmedCause: { id: string } | null, technician: { name: string } }
+      const api = byId.get(Number(row.id)) as { minutes: number, confirmedCause: { id: string, label: string } | null, technician: { name: string } }
       expect(Number(row.minutes)).toBe(api.minutes)
-      expect(row.confirmed_cause).toBe(api.confirmedCause?.id ?? '')
+      expect(row.confirmed_cause).toBe(api.confirmedCause?.label ?? '')
+      expect(`${row.cause_procedure}:${row.cause_key}`).toBe(api.confirmedCause?.id ?? ':')
       expect(row.technician).toBe(api.technician.name)
     }
+  })
+
+  it('names the confirmed cause in the export, its ids in their own columns, never the bare key', async () => {
+    const tech = await signedIn(DEMO.technician)
+    const rows = parse(await (await fetch(`${tech.baseUrl}/api/records/export.csv?status=closed&outcome=repaired`, { headers: { cookie: tech.cookie } })).text(), { columns: true }) as Array<Record<string, string>>
+    expect(rows.length).toBeGreaterThan(10)
+    testDb()
+    const named = rows.filter(r => r.cause_key)
+    expect(named.length).toBeGreaterThan(10)
+    const procs = new Map((await Procedure.findAll()).map(p => [p.slug, p]))
+    for (const row of named.slice(0, 40)) {
+      const live = await Revision.findByPk(procs.get(row.cause_procedure)!.publishedRevisionId!)
+      const record = await RepairRecord.findByPk(Number(row.id))
+      const pinned = record!.revisionId && record!.procedureId === procs.get(row.cause_procedure)!.id ? await Revision.findByPk(record!.revisionId) : null
+      const name = (pinned ?? live)!.content.causes.find(c => c.key === row.cause_key)?.name
+      expect(row.confirmed_cause, `record ${row.id}`).toBe(name)
+      expect(row.confirmed_cause).not.toContain(':')
+    }
+  })
+
+  // Enough records for the export to read more than one page of 500: open ones (no close date,
+  // no minutes, which MariaDB sorts first ascending and last descending) with many equal values.
+  let extra: Promise<unknown> | undefined
+  const manyRecords = () => (extra ??= (async () => {
+    testDb()
+    const tech = await makeUser()
+    const day = Date.UTC(2025, 0, 1)
+    await RepairRecord.bulkCreate(Array.from({ length: 520 }, (_, i) => ({
+      deviceType: 'usb-c-charger-30w', symptoms: [], technicianId: tech.id, procedureId: null, revisionId: null, causeProcedureId: null, causeKey: null,
+      outcome: null, minutes: i % 3 ? null : i % 7, replacementCostCents: null, closedAt: null, startedAt: new Date(day + (i % 40) * 3_600_000),
+    })))
+  })())
+
+  it.each(['-startedAt', 'minutes', '-minutes', 'closedAt', '-closedAt'])('exports in the list\'s order (sort=%s), every row once, across the export\'s pages', async (sort) => {
+    await manyRecords()
+    const tech = await signedIn(DEMO.technician)
+    const listed: number[] = []
+    for (let page = 1; ; page++) {
+      const res = await tech.get(`/api/records?sort=${sort}&pageSize=200&page=${page}`)
+      listed.push(...res.body.data.map((r: { id: number }) => r.id))
+      if (page >= res.body.meta.pages) break
+    }
+    expect(listed.length, 'more rows than one page of the export (500)').toBeGreaterThan(500)
+    const rows = parse(await (await fetch(`${tech.baseUrl}/api/records/export.csv?sort=${sort}`, { headers: { cookie: tech.cookie } })).text(), { columns: true }) as Array<Record<string, string>>
+    expect(rows.map(r => Number(r.id))).toEqual(listed)
+  })
+
+  it('neutralises formulas in every text cell of the export (OWASP CSV injection guidance)', async () => {
+    const sly = await makeUser({ name: '=HYPERLINK("http://evil.example","open me")' })
+    const client = await new ApiClient().login(sly.email, FACTORY_PASSWORD)
+    const record = await start(client, { procedureSlug: SLUG, unit: { model: '@SUM(1+9)*cmd|\' /C calc\'!A0', serial: '+cmd|\' /C notepad\'!A0', jobRef: '-2+3' } })
+    await client.patch(`/api/records/${record.id}`, { version: record.version, notes: '=1+1' })
+    const csv = await (await fetch(`${client.baseUrl}/api/records/export.csv?technician=${sly.id}`, { headers: { cookie: client.cookie } })).text()
+    const [row] = parse(csv, { columns: true }) as Array<Record<string, string>>
+    expect(row).toMatchObject({
+      model: '\'@SUM(1+9)*cmd|\' /C calc\'!A0',
+      serial: '\'+cmd|\' /C notepad\'!A0',
+      job_ref: '\'-2+3',
+      technician: '\'=HYPERLINK("http://evil.example","open me")',
+    })
+    for (const cell of Object.values(row!)) expect(cell, 'no cell starts a formula').not.toMatch(/^[=+\-@\t\r]/)
+  })
+
+  it('finds records by words of the unit\'s model, serial or job reference', async () => {
+    const tech = await signedIn(DEMO.technician)
+    const tag = Math.random().toString(36).slice(2, 8).toUpperCase()
+    const a = await start(tech, { procedureSlug: SLUG, unit: { model: `Lumen ${tag} mk2`, serial: 'SN-1', jobRef: 'J-1' } })
+    const b = await start(tech, { procedureSlug: SLUG, unit: { model: 'Other', serial: `ZX${tag}9`, jobRef: 'J-2' } })
+    const c = await start(tech, { procedureSlug: SLUG, unit: { model: 'Other', serial: 'SN-3', jobRef: `HL-${tag}` } })
+    const found = async (q: string) => (await tech.get(`/api/records?q=${encodeURIComponent(q)}&pageSize=50`)).body.data.map((r: { id: number }) => r.id).sort()
+    expect(await found(tag)).toEqual([a.id, b.id, c.id].sort())
+    expect(await found(tag.toLowerCase()), 'case does not matter').toEqual([a.id, b.id, c.id].sort())
+    expect(await found(`lumen ${tag}`), 'every word must match').toEqual([a.id])
+    expect(await found(`HL-${tag}`)).toEqual([c.id])
+    expect(await found('%'), 'a wildcard is taken literally').toEqual([])
+    const csv = await (await fetch(`${tech.baseUrl}/api/records/export.csv?q=${tag}`, { headers: { cookie: tech.cookie } })).text()
+    expect((parse(csv, { columns: true }) as unknown[]).length).toBe(3)
   })
 
   it('answers bad filters with 400 naming the field', async () => {

@@ -1,12 +1,12 @@
 import { Readable } from 'node:stream'
 import { stringify } from 'csv-stringify'
 import { RecordListQuery } from '#shared/types/records'
-import { CSV_COLUMNS, recordCsvRows } from '../../services/records/listing'
+import { CSV_COLUMNS, recordCsvRows } from '../../services/records/export'
 
-// Streamed: rows are read a page at a time and written as they come.
+// Streamed: rows are read a page at a time, in the list's order, and written as they come.
 export default defineEventHandler(async (event) => {
   await requireUser(event)
-  const { sort: _s, page: _p, pageSize: _z, ...filters } = await getValidatedQuery(event, parseWith(RecordListQuery))
+  const { page: _p, pageSize: _z, ...filters } = await getValidatedQuery(event, parseWith(RecordListQuery))
   setResponseHeaders(event, {
     'Content-Type': 'text/csv; charset=utf-8',
     'Content-Disposition': `attachment; filename="benchlore-records-${new Date().toISOString().slice(0, 10)}.csv"`,

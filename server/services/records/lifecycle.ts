@@ -1,7 +1,7 @@
 import type { Transaction } from 'sequelize'
 import type { Outcome } from '../../../shared/types/records'
 import type { User } from '../../db'
-import { Attachment, DeviceType, Procedure, RecordAmendment, RecordSymptom, RepairRecord, Revision, Symptom, inTransaction } from '../../db'
+import { DeviceType, Procedure, RecordAmendment, RecordSymptom, RepairRecord, Revision, Symptom, inTransaction } from '../../db'
 import type { StoredPart, StoredStep } from '../../db/models/repair-record'
 import { recordAudit } from '../audit/audit-log'
 import { notifyEvidenceChanged } from '../change-log/notify'
@@ -10,6 +10,7 @@ import { adjustCauseCounts } from '../evidence/counts'
 import { candidateCauses, causeId } from '../evidence/causes'
 import { canAmendRecord, canEditRecord, findRecord } from './access'
 import { eur, toRecordDto } from './dto'
+import { assertPhotosLinkable } from './links'
 
 // A repair record from start to close: started from a live procedure (its revision pinned) or
 // from device type and symptoms, saved as the technician goes (stale version → 409 with the
@@ -56,19 +57,19 @@ export async function startRecord(input: { procedureSlug?: string, deviceType?: 
 }
 
 /** Saves a record in progress (as the technician goes); a stale version gets 409 with the current record. */
-export async function patchRecord(id: number, patch: { version: number, unit?: Partial<{ model: string, serial: string, jobRef: string }>, symptoms?: string[], steps?: Record<string, StoredStep>, notes?: string, photoIds?: number[] }, actor: User) {
+export async function patchRecord(id: number, patch: { version: number, unit?: Partial<{ model: string, serial: string, jobRef: string }>, symptoms?: string[], steps?: Record<string, Partial<StoredStep>>, notes?: string, photoIds?: number[] }, actor: User) {
   const result = await inTransaction(async (transaction) => {
     const r = await findRecord(id, transaction)
     if (r.status !== 'in_progress') throw conflict('This record is closed; correct it with an amendment.', { status: r.status })
     if (!canEditRecord(actor, r)) throw forbidden('Only the record\'s technician or an editor can change it.')
     if (r.version !== patch.version) return { stale: true as const, r }
-    if (patch.photoIds) await assertPhotos(patch.photoIds)
+    if (patch.photoIds) await assertPhotosLinkable(r, patch.photoIds, actor, transaction)
     await r.update({
       unitModel: patch.unit?.model ?? r.unitModel,
       unitSerial: patch.unit?.serial ?? r.unitSerial,
       jobRef: patch.unit?.jobRef ?? r.jobRef,
       symptoms: patch.symptoms ?? r.symptoms,
-      steps: patch.steps ? { ...r.steps, ...patch.steps } : r.steps,
+      steps: patch.steps ? mergeSteps(r.steps, patch.steps) : r.steps,
       notes: patch.notes ?? r.notes,
       photoIds: patch.photoIds ?? r.photoIds,
       version: r.version + 1,
@@ -82,10 +83,11 @@ export async function patchRecord(id: number, patch: { version: number, unit?: P
   return result.r
 }
 
-async function assertPhotos(ids: number[]) {
-  if (!ids.length) return
-  const n = await Attachment.count({ where: { id: ids, kind: 'image' } })
-  if (n !== new Set(ids).size) throw invalid('A photo in the list does not exist.', { photoIds: 'unknown photo' })
+/** A save names some fields of some steps: those change, everything else stays as it was. */
+function mergeSteps(stored: Record<string, StoredStep>, patch: Record<string, Partial<StoredStep>>): Record<string, StoredStep> {
+  const merged = { ...stored }
+  for (const [key, entry] of Object.entries(patch)) merged[key] = { value: '', note: '', done: false, ...stored[key], ...entry }
+  return merged
 }
 
 async function resolveCause(record: RepairRecord, cause: string | null): Promise<{ causeProcedureId: number | null, causeKey: string | null }> {
@@ -101,10 +103,10 @@ export async function closeRecord(id: number, body: { confirmedCause: string | n
   if (r.status !== 'in_progress') throw conflict('This record is already closed.', { status: r.status })
   if (!canEditRecord(actor, r)) throw forbidden('Only the record\'s technician or an editor can close it.')
   const cause = await resolveCause(r, body.confirmedCause)
-  await assertPhotos(body.photoIds)
   return await inTransaction(async (transaction) => {
     const locked = await findRecord(id, transaction)
     if (locked.status !== 'in_progress') throw conflict('This record is already closed.')
+    await assertPhotosLinkable(locked, body.photoIds, actor, transaction)
     await locked.update({
       ...cause,
       status: 'closed',
@@ -135,7 +137,7 @@ export async function amendRecord(id: number, body: { reason: string, changes: P
   const outcome = c.outcome ?? r.outcome
   const cause = c.confirmedCause !== undefined ? await resolveCause(r, c.confirmedCause) : { causeProcedureId: r.causeProcedureId, causeKey: r.causeKey }
   if (outcome === 'no_fault_found' && cause.causeKey) throw invalid('No cause can be confirmed when no fault was found.', { confirmedCause: 'must be empty for no fault found' })
-  if (c.photoIds) await assertPhotos(c.photoIds)
+  if (c.photoIds) await assertPhotosLinkable(r, c.photoIds, actor)
   // The cause goes by the same `procedureSlug:causeKey` id before and after, as the API shows it.
   const causeProc = r.causeProcedureId ? await Procedure.findByPk(r.causeProcedureId, { attributes: ['slug'] }) : null
   const before: Record<string, unknown> = {

@@ -5,15 +5,24 @@ import { DeviceType, Procedure, RepairRecord, Revision, Symptom, User, useDb } f
 import { causeId } from '../evidence/causes'
 import { eur } from './dto'
 
-// The team's records: filtered, sorted and paged for the list, streamed for the CSV export.
+// The team's records: filtered, sorted and paged for the list (the CSV export, ./export.ts, reads
+// them through the same filter and order).
 
-const SORT: Record<RecordListQuery['sort'], [string, 'ASC' | 'DESC']> = {
+export const RECORD_SORT: Record<RecordListQuery['sort'], [string, 'ASC' | 'DESC']> = {
   'closedAt': ['closedAt', 'ASC'], '-closedAt': ['closedAt', 'DESC'], 'startedAt': ['startedAt', 'ASC'],
   '-startedAt': ['startedAt', 'DESC'], 'minutes': ['minutes', 'ASC'], '-minutes': ['minutes', 'DESC'],
 }
 
+/** A typed term as a LIKE pattern that matches it anywhere, its wildcards taken literally. */
+const containing = (term: string) => `%${term.replace(/[\\%_]/g, c => `\\${c}`)}%`
+
 export async function recordWhere(q: Omit<RecordListQuery, 'sort' | 'page' | 'pageSize'>): Promise<WhereOptions> {
   const and: WhereOptions[] = []
+  // Free text: every word must appear in the unit's model, serial or job reference.
+  for (const term of (q.q ?? '').split(/\s+/).filter(Boolean).slice(0, 8)) {
+    const like = { [Op.like]: containing(term) }
+    and.push({ [Op.or]: [{ unitModel: like }, { unitSerial: like }, { jobRef: like }] })
+  }
   if (q.deviceType) and.push({ deviceType: q.deviceType })
   if (q.outcome) and.push({ outcome: q.outcome })
   if (q.status) and.push({ status: q.status })
@@ -33,7 +42,7 @@ export async function recordWhere(q: Omit<RecordListQuery, 'sort' | 'page' | 'pa
   return { [Op.and]: and }
 }
 
-async function listItems(rows: RepairRecord[]): Promise<RecordListItemDto[]> {
+export async function listItems(rows: RepairRecord[]): Promise<RecordListItemDto[]> {
   const procIds = [...new Set(rows.flatMap(r => [r.procedureId, r.causeProcedureId]).filter((x): x is number => !!x))]
   const [procs, people, types, symptoms] = await Promise.all([
     Procedure.findAll({ where: { id: procIds }, attributes: ['id', 'slug', 'publishedRevisionId'], raw: true }),
@@ -41,16 +50,24 @@ async function listItems(rows: RepairRecord[]): Promise<RecordListItemDto[]> {
     DeviceType.findAll({ attributes: ['slug', 'name'], raw: true }),
     Symptom.findAll({ attributes: ['slug', 'name'], raw: true }),
   ])
-  const revIds = [...new Set(rows.map(r => r.revisionId).filter((x): x is number => !!x))]
+  const live = new Map(procs.map(p => [p.id, p.publishedRevisionId]))
+  const revIds = [...new Set([...rows.map(r => r.revisionId), ...rows.map(r => r.causeProcedureId && live.get(r.causeProcedureId))].filter((x): x is number => !!x))]
   const revs = await Revision.findAll({ where: { id: revIds } })
   const title = new Map(revs.map(r => [r.id, r.content]))
   const procSlug = new Map(procs.map(p => [p.id, p.slug]))
+  // A cause is named as the revision the record was pinned to names it, else as its procedure's live revision does.
+  const causeName = (r: RepairRecord) => {
+    if (!r.causeKey || !r.causeProcedureId) return null
+    const pinned = r.causeProcedureId === r.procedureId && r.revisionId ? title.get(r.revisionId) : undefined
+    const content = pinned ?? title.get(live.get(r.causeProcedureId) ?? 0)
+    return content?.causes.find(c => c.key === r.causeKey)?.name ?? r.causeKey
+  }
   const person = new Map(people.map(p => [p.id, p]))
   const typeName = new Map(types.map(t => [t.slug, t.name]))
   const symptomName = new Map(symptoms.map(s => [s.slug, s.name]))
   return rows.map((r) => {
     const content = r.revisionId ? title.get(r.revisionId) : undefined
-    const causeLabel = r.causeKey ? (content?.causes.find(c => c.key === r.causeKey)?.name ?? r.causeKey) : null
+    const causeLabel = causeName(r)
     return {
       id: r.id,
       status: r.status,
@@ -73,24 +90,7 @@ async function listItems(rows: RepairRecord[]): Promise<RecordListItemDto[]> {
 
 export async function listRecords(q: RecordListQuery): Promise<Paginated<RecordListItemDto>> {
   const where = await recordWhere(q)
-  const [col, dir] = SORT[q.sort]
+  const [col, dir] = RECORD_SORT[q.sort]
   const { rows, count } = await RepairRecord.findAndCountAll({ where, order: [[col, dir], ['id', dir]], limit: q.pageSize, offset: (q.page - 1) * q.pageSize })
   return { data: await listItems(rows), meta: { total: count, page: q.page, pageSize: q.pageSize, pages: Math.max(1, Math.ceil(count / q.pageSize)) } }
-}
-
-export const CSV_COLUMNS = ['id', 'status', 'procedure', 'device_type', 'symptoms', 'model', 'serial', 'job_ref', 'technician', 'confirmed_cause', 'outcome', 'minutes', 'parts_cost_eur', 'replacement_cost_eur', 'comeback', 'started_at', 'closed_at'] as const
-
-/** Yields CSV rows for the filter in id order, a page at a time, so an export never sits in memory whole. */
-export async function* recordCsvRows(q: Omit<RecordListQuery, 'sort' | 'page' | 'pageSize'>): AsyncGenerator<Array<string | number>> {
-  const where = await recordWhere(q)
-  let after = 0
-  for (;;) {
-    const rows = await RepairRecord.findAll({ where: { [Op.and]: [where, { id: { [Op.gt]: after } }] }, order: [['id', 'ASC']], limit: 500 })
-    if (!rows.length) return
-    for (const item of await listItems(rows)) {
-      yield [item.id, item.status, item.procedure?.slug ?? '', item.deviceType.slug, item.symptoms.map(s => s.slug).join('|'), item.unit.model, item.unit.serial, item.unit.jobRef,
-        item.technician.name, item.confirmedCause?.id ?? '', item.outcome ?? '', item.minutes ?? '', item.partsCost.toFixed(2), item.replacementCost?.toFixed(2) ?? '', item.comeback ? 'yes' : 'no', item.startedAt, item.closedAt ?? '']
-    }
-    after = rows[rows.length - 1]!.id
-  }
 }

@@ -5,6 +5,7 @@ import { Procedure, Revision, StepFlag, User, inTransaction } from '../../db'
 import { recordAudit } from '../audit/audit-log'
 import { forbidden, invalid, notFound } from '../errors'
 import { queueMail } from '../mail/outbox'
+import { canSeeRevision } from '../procedures/access'
 
 // Step flags: anyone following a procedure can flag a step as unclear or wrong; its author and
 // the editors are mailed, and they resolve the flag.
@@ -12,7 +13,7 @@ import { queueMail } from '../mail/outbox'
 export async function flagStep(input: { revisionId: number, stepKey: string, kind: 'unclear' | 'wrong', note: string }, actor: User, appOrigin: string) {
   const rev = await Revision.findByPk(input.revisionId)
   const proc = rev ? await Procedure.findByPk(rev.procedureId) : null
-  if (!rev || !proc || (rev.state !== 'published' && !roleAtLeast(actor.role, 'author'))) throw notFound('revision')
+  if (!rev || !proc || !canSeeRevision(actor, rev, proc)) throw notFound('revision')
   const step = rev.content.steps.find(s => s.key === input.stepKey)
   if (!step) throw invalid(`This revision has no step "${input.stepKey}".`, { stepKey: 'no such step' })
   return await inTransaction(async (transaction) => {
