@@ -165,6 +165,21 @@ describe('drafts and conflicts', () => {
     expect(JSON.stringify(list.body)).not.toContain('Secret draft procedure')
     expect((await (await signedIn(DEMO.editor)).get(`/api/revisions/${revision.id}`)).status, 'editors see drafts').toBe(200)
   })
+
+  it('answers a draft-only procedure\'s reference captures exactly as a slug nobody used (no existence oracle)', async () => {
+    const author = await signedIn(DEMO.author)
+    const tech = await signedIn(DEMO.technician)
+    const other = await new ApiClient().login((await makeUser({ role: 'author' })).email, FACTORY_PASSWORD)
+    const { procedure } = await newDraft(author, makeContent({ title: 'Unannounced draft procedure' }))
+    const hidden = await tech.get(`/api/procedures/${procedure.slug}/references`)
+    const unknown = await tech.get(`/api/procedures/no-such-${procedure.slug}/references`)
+    expect([hidden.status, unknown.status]).toEqual([404, 404])
+    expect(hidden.body.message).toBe(unknown.body.message)
+    expect((await other.get(`/api/procedures/${procedure.slug}/references`)).status).toBe(404)
+    expect((await author.get(`/api/procedures/${procedure.slug}/references`)).body).toEqual({ data: [] })
+    expect((await (await signedIn(DEMO.editor)).get(`/api/procedures/${procedure.slug}/references`)).status).toBe(200)
+    expect((await tech.get('/api/procedures/vr240-stuck-at-full/references')).status, 'a live procedure answers everyone').toBe(200)
+  })
 })
 
 describe('comparison and comments', () => {
@@ -262,6 +277,23 @@ describe('vocabularies', () => {
     const listed = (await editor.get('/api/procedures?symptom=dead-no-output&pageSize=100')).body.data as Array<{ id: number, symptoms: Array<{ slug: string }> }>
     const item = listed.find(p => p.id === procedure.id)
     expect(item?.symptoms.map(s => s.slug)).toEqual(['does-not-dim', 'dead-no-output'])
+  })
+})
+
+describe('changing vocabulary entries', () => {
+  it('changes only the fields a PATCH names; the others keep their values', async () => {
+    const editor = await signedIn(DEMO.editor)
+    const tag = randomBytes(3).toString('hex')
+    const symptom = (await editor.post('/api/symptoms', { name: `Ticks when warm ${tag}`, synonyms: ['ticking', 'clicks warm'], description: 'A relay-like tick.' })).body.symptom
+    const described = await editor.patch(`/api/symptoms/${symptom.id}`, { description: 'A tick once the case is warm.' })
+    expect(described.status).toBe(200)
+    expect(described.body.symptom).toMatchObject({ synonyms: ['ticking', 'clicks warm'], description: 'A tick once the case is warm.', name: `Ticks when warm ${tag}` })
+    const renamed = await editor.patch(`/api/symptoms/${symptom.id}`, { name: `Ticks once warm ${tag}` })
+    expect(renamed.body.symptom).toMatchObject({ synonyms: ['ticking', 'clicks warm'], description: 'A tick once the case is warm.' })
+    const type = (await editor.post('/api/device-types', { name: `Bench type ${tag}`, description: 'Kept on rename.' })).body.deviceType
+    const typeRenamed = await editor.patch(`/api/device-types/${type.id}`, { name: `Bench type renamed ${tag}` })
+    expect(typeRenamed.status).toBe(200)
+    expect(typeRenamed.body.deviceType).toMatchObject({ name: `Bench type renamed ${tag}`, description: 'Kept on rename.' })
   })
 })
 

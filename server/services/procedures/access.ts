@@ -1,4 +1,4 @@
-import type { Transaction } from 'sequelize'
+import { Op, type Transaction } from 'sequelize'
 import { roleAtLeast } from '../../../shared/types/roles'
 import type { RevisionState } from '../../../shared/types/procedure'
 import { Procedure, Revision, type User } from '../../db'
@@ -40,6 +40,23 @@ export async function loadVisibleRevision(id: number, user: User): Promise<{ rev
   const found = await loadRevision(id)
   if (!canSeeRevision(user, found.rev, found.proc)) throw notFound('revision')
   return found
+}
+
+/**
+ * A procedure this person may know of: one of its revisions is visible to them. Anything else
+ * answers 404 exactly like a slug nobody used, so routes keyed by slug are no existence oracle.
+ */
+export async function findVisibleProcedure(slug: string, user: User): Promise<Procedure> {
+  const proc = await Procedure.findOne({ where: { slug } })
+  if (!proc) throw notFound('procedure')
+  if (roleAtLeast(user.role, 'editor')) return proc
+  if (!roleAtLeast(user.role, 'author')) {
+    if (proc.status === 'active' && proc.publishedRevisionId) return proc
+    throw notFound('procedure')
+  }
+  const seen = await Revision.count({ where: { procedureId: proc.id, [Op.or]: [{ state: { [Op.ne]: 'draft' } }, { authorId: user.id }] } })
+  if (!seen) throw notFound('procedure')
+  return proc
 }
 
 export async function findProcedure(slug: string): Promise<Procedure> {
