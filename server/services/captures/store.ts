@@ -2,9 +2,9 @@ import { createHash, randomUUID } from 'node:crypto'
 import { Readable } from 'node:stream'
 import type { CaptureDto, CaptureFileDto, CaptureUploadFields } from '../../../shared/types/captures'
 import { analyseWaveform, WaveformError, type WaveformAnalysis } from '../../../shared/utils/waveform/analyse'
-import { Attachment, Capture, RepairRecord, Revision, User, inTransaction } from '../../db'
-import { conflict, forbidden, invalid, notFound, tooLarge } from '../errors'
-import { canEditRecord } from '../records/access'
+import { Attachment, Capture, Revision, User, inTransaction } from '../../db'
+import { invalid, notFound, tooLarge } from '../errors'
+import { recordToAttachTo } from '../records/links'
 import type { ObjectStore } from '../storage'
 import { ObjectStoreUnavailable } from '../storage'
 import { CaptureFormatError, describeSkipped, parseCaptureCsv, type CaptureMeta, type ColumnChoice, type ParsedCapture } from './parse'
@@ -91,12 +91,7 @@ export async function readCapture(data: Buffer, columns?: ColumnChoice): Promise
  * editor, while the record is in progress; the step must be one of its pinned revision's.
  */
 async function checkAttachment(recordId: number, stepKey: string | undefined, actor: User): Promise<void> {
-  const record = await RepairRecord.findByPk(recordId)
-  if (!record) throw invalid('No such repair record.', { recordId: 'unknown record' })
-  if (!canEditRecord(actor, record)) {
-    if (record.status !== 'in_progress') throw conflict('The record is closed: a capture can no longer be attached to it.')
-    throw forbidden('Only the record\'s technician or an editor can attach a capture to it.')
-  }
+  const record = await recordToAttachTo(recordId, actor)
   if (stepKey === undefined) return
   const revision = record.revisionId ? await Revision.findByPk(record.revisionId, { attributes: ['id', 'content'] }) : null
   if (!revision?.content.steps.some(s => s.key === stepKey)) {

@@ -35,7 +35,7 @@ export async function assertPhotosLinkable(record: RepairRecord, photoIds: numbe
 export async function recordToAttachTo(recordId: number, actor: User, transaction?: Transaction): Promise<RepairRecord> {
   const record = await RepairRecord.findByPk(recordId, { transaction })
   if (!record) throw invalid('No such repair record.', { recordId: 'unknown record' })
-  if (record.status !== 'in_progress') throw conflict('This record is closed; attach to it through an amendment.', { fields: { recordId: 'record is closed' } })
+  if (record.status !== 'in_progress') throw conflict('The record is closed: nothing more can be attached to it.', { fields: { recordId: 'record is closed' } })
   if (!canEditRecord(actor, record)) throw forbidden('Only the record\'s technician or an editor can attach to it.')
   return record
 }
