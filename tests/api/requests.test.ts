@@ -131,7 +131,7 @@ describe('headers', () => {
 })
 
 describe('methods a route does not serve', () => {
-  it.each(['/api/captures', '/api/users/invite', '/api/auth/login'])('GET %s answers a JSON 404, not the sign-in page', async (path) => {
+  it.each(['/api/uploads', '/api/readings/evaluate', '/api/users/invite', '/api/auth/login'])('GET %s answers a JSON 404, not the sign-in page', async (path) => {
     const res = await new ApiClient().get(path)
     expect(res.status).toBe(404)
     expect(res.headers.get('content-type')).toMatch(/application\/json/)
