@@ -1,14 +1,14 @@
 import { randomBytes } from 'node:crypto'
 import { describe, expect, it } from 'vitest'
 import { QueryTypes, Transaction } from 'sequelize'
-import { createSequelize, dbConfigFromEnv, isDeadlock } from '../../server/db'
+import { isDeadlock } from '../../server/db'
 import { LEASE_TABLE, withLease } from '../../server/db/lease'
 import { migrateUp } from '../../server/db/migrate'
 import { MIGRATIONS } from '../../server/db/migrations'
 import { nodeQuery } from '../../scripts/lib/galera'
 import { DB_USER } from '../../scripts/lib/stack'
 import { DEMO } from '../helpers/api'
-import { APP, NODES, client, clusterConflicts, onNode } from '../helpers/cluster'
+import { APP, NODES, client, clusterConflicts, onNode, pinned } from '../helpers/cluster'
 import { makeContent } from '../helpers/content'
 import { FACTORY_PASSWORD, makeUser } from '../helpers/db'
 import { capturedMail, waitUntil } from '../helpers/stack'
@@ -17,12 +17,6 @@ import { capturedMail, waitUntil } from '../helpers/stack'
 // instance preferring a different node): what a single server serialises with row locks,
 // named locks and SKIP LOCKED must still hold when the writers sit on different nodes.
 const run = randomBytes(3).toString('hex')
-
-/** A database connection pinned to one node (no failover), as an app instance or a deploy script would have. */
-const pinned = (node: (typeof NODES)[number], name?: string) => {
-  const cfg = dbConfigFromEnv()
-  return createSequelize({ ...cfg, ...(name ? { name } : {}), hosts: `127.0.0.1:${node.port}` })
-}
 
 describe('revision numbers on a cluster', () => {
   it('stay unique and gapless when authors on both instances (two nodes) submit at once', async () => {

@@ -4,6 +4,7 @@ import { setTimeout as sleep } from 'node:timers/promises'
 import { appUrl, asStack, clusterProfile, proxyUrl } from '../../scripts/lib/cluster'
 import { nodeQuery, type GaleraNode } from '../../scripts/lib/galera'
 import { DB_NAME } from '../../scripts/lib/stack'
+import { createSequelize, dbConfigFromEnv } from '../../server/db'
 import { ApiClient } from './api'
 
 /** The cluster `npm run test:cluster` started: its ports, folders and nodes. */
@@ -17,6 +18,12 @@ export const NODES = cluster.db.nodes
 export function onNode(node: GaleraNode, sql: string): string[][] {
   const out = nodeQuery(node, `USE \`${DB_NAME}\`; ${sql}`).trim()
   return out ? out.split('\n').map(l => l.split('\t')) : []
+}
+
+/** A database connection pinned to one node (no failover), as an app instance or a deploy script would have. */
+export function pinned(node: GaleraNode, name?: string) {
+  const cfg = dbConfigFromEnv()
+  return createSequelize({ ...cfg, ...(name ? { name } : {}), hosts: `127.0.0.1:${node.port}` })
 }
 
 /** Write sets this node lost to certification, and local transactions aborted by replicated ones. */

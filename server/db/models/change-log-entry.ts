@@ -4,9 +4,10 @@ export const CHANGE_KINDS = ['procedure', 'vocabulary', 'evidence'] as const
 export type ChangeKind = (typeof CHANGE_KINDS)[number]
 
 /**
- * What changed in the published corpus, in commit order. Every app instance keeps its own
- * search index and follows this log by id watermark, so a publish on one instance reaches the
- * others within one poll.
+ * What changed in the published corpus, written in the transaction of the change. Every app
+ * instance keeps its own search index and applies the entries it has not applied yet, so a
+ * publish on one instance reaches the others within one poll. Ids are not commit order
+ * (server/services/search/sync.ts says how that is handled).
  */
 export class ChangeLogEntry extends Model<InferAttributes<ChangeLogEntry>, InferCreationAttributes<ChangeLogEntry>> {
   declare id: CreationOptional<number>

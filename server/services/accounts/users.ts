@@ -1,6 +1,7 @@
 import type { AdminUserDto, UserDto } from '../../../shared/types/auth'
 import type { Role } from '../../../shared/types/roles'
 import { type Invitation, User, inTransaction } from '../../db'
+import { writeRuleGuard } from '../../db/guards'
 import { recordAudit } from '../audit/audit-log'
 import { conflict, notFound } from '../errors'
 import { latestInvitations, revokeOpenInvitations } from './invitations'
@@ -42,8 +43,9 @@ export async function listUsers(): Promise<AdminUserDto[]> {
 /**
  * Role and activation changes by an admin. Both end the user's sessions, and both withdraw an
  * invitation not yet accepted (its link carries the decision taken before). The last active
- * admin can be neither demoted nor deactivated: the check runs under row locks so two admins
- * demoting each other at once cannot both succeed.
+ * admin can be neither demoted nor deactivated: the check runs under row locks, and a change that
+ * takes an admin away also writes the `active-admins` guard row, so two admins demoting each
+ * other at once cannot both succeed, through one server or two nodes of a cluster.
  */
 export async function updateUser(targetId: number, patch: { role?: Role, active?: boolean, name?: string }, actor: User): Promise<User> {
   return await inTransaction(async (transaction) => {
@@ -58,6 +60,7 @@ export async function updateUser(targetId: number, patch: { role?: Role, active?
         { fields: { [patch.role ? 'role' : 'active']: 'this is the last active admin' } },
       )
     }
+    if (losesAdmin) await writeRuleGuard('active-admins', transaction)
     const endsSessions = (patch.role !== undefined && patch.role !== user.role) || (patch.active !== undefined && patch.active !== user.active)
     if (endsSessions) await revokeOpenInvitations(user.id, transaction)
     await user.update({

@@ -1,4 +1,4 @@
-import { Op, type Transaction } from 'sequelize'
+import { Op, UniqueConstraintError, type Transaction } from 'sequelize'
 import { roleAtLeast } from '../../../shared/types/roles'
 import { RevisionContent, type DraftContent, type RevisionState } from '../../../shared/types/procedure'
 import type { RevisionComparisonDto, RevisionDetailDto, RevisionSummaryDto } from '../../../shared/types/procedure-api'
@@ -45,17 +45,32 @@ export async function createProcedure(content: DraftContent, changeNote: string 
   })
 }
 
+const alreadyDrafting = (revisionId?: number) => conflict('You already have a draft of this procedure.', { revisionId })
+
 /**
  * A new draft for the caller: from the live revision, or from a revision that was sent back to
- * them. One open draft per author and procedure.
+ * them. One open draft per author and procedure: checked under the procedure's row lock, and
+ * held by a unique index (revisions_one_open_draft), which also refuses the second of two drafts
+ * started at once through different nodes of a cluster, where the row lock binds one node only.
  */
 export async function startDraft(slug: string, actor: User, fromId?: number) {
+  try {
+    return await createDraft(slug, actor, fromId)
+  }
+  catch (error) {
+    if (!(error instanceof UniqueConstraintError && /revisions_one_open_draft/.test(String(error.original?.message)))) throw error
+    const open = await Revision.findOne({ where: { authorId: actor.id, state: 'draft' }, include: [{ model: Procedure, as: 'procedure', where: { slug }, attributes: [] }], attributes: ['id'] })
+    throw alreadyDrafting(open?.id)
+  }
+}
+
+async function createDraft(slug: string, actor: User, fromId?: number) {
   return await inTransaction(async (transaction) => {
     const proc = await Procedure.findOne({ where: { slug }, transaction, lock: transaction.LOCK.UPDATE })
     if (!proc) throw notFound('procedure')
     if (proc.status === 'retired') throw conflict('This procedure is retired; it takes no new revisions.')
     const open = await Revision.findOne({ where: { procedureId: proc.id, authorId: actor.id, state: 'draft' }, transaction })
-    if (open) throw conflict('You already have a draft of this procedure.', { revisionId: open.id })
+    if (open) throw alreadyDrafting(open.id)
     const base = fromId ? await Revision.findByPk(fromId, { transaction }) : proc.publishedRevisionId ? await Revision.findByPk(proc.publishedRevisionId, { transaction }) : null
     if (!base || base.procedureId !== proc.id) throw new DomainError('not_found', fromId ? 'No such revision of this procedure.' : 'This procedure has no live revision to start from.')
     if (fromId && !(base.state === 'changes_requested' && base.authorId === actor.id) && base.state !== 'published') {

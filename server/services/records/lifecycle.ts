@@ -19,8 +19,13 @@ import { assertPhotosLinkable } from './links'
 
 const cents = (euros: number) => Math.round(euros * 100)
 
-async function writeSymptoms(recordId: number, symptoms: string[], transaction: Transaction) {
-  await RecordSymptom.destroy({ where: { recordId }, transaction })
+/**
+ * A new record (`replace` false) has no rows to remove: a DELETE there would still take a gap
+ * lock on the empty range, which blocks other records' inserts and, on a cluster, makes
+ * replicated writes abort local ones.
+ */
+async function writeSymptoms(recordId: number, symptoms: string[], transaction: Transaction, replace = true) {
+  if (replace) await RecordSymptom.destroy({ where: { recordId }, transaction })
   if (symptoms.length) await RecordSymptom.bulkCreate([...new Set(symptoms)].map(symptom => ({ recordId, symptom })), { transaction })
 }
 
@@ -50,7 +55,7 @@ export async function startRecord(input: { procedureSlug?: string, deviceType?: 
       technicianId: actor.id, causeProcedureId: null, causeKey: null, outcome: null, minutes: null,
       replacementCostCents: null, closedAt: null,
     }, { transaction })
-    await writeSymptoms(record.id, symptoms, transaction)
+    await writeSymptoms(record.id, symptoms, transaction, false)
     await recordAudit({ actorId: actor.id, action: 'record.started', entityType: 'record', entityId: record.id, after: { procedureId, revisionId } }, transaction)
     return record
   })

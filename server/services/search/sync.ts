@@ -6,20 +6,35 @@ import { mergedSymptomSlugs } from '../vocabulary'
 import { ProcedureSearchIndex } from './engine'
 import type { EvidenceLookup, SearchRequest, SearchResponse, SearchVocabulary } from './types'
 
+/** How long an id of the change log is read for again after this instance first saw it. */
+const SETTLE_MS = 5 * 60_000
+
 /**
  * This instance's search index over the published procedures, kept in step with MariaDB:
- * built at start, then every few seconds it reads the change log past its watermark (written
- * in the same transactions as publish, retire, vocabulary and record changes) and applies only
- * what changed. Each app instance runs one; none needs to hear from another.
+ * built at start, then every few seconds it reads the change log (written in the same
+ * transactions as publish, retire, vocabulary and record changes) and applies only what changed.
+ * Each app instance runs one; none needs to hear from another.
+ *
+ * Ids do not arrive in order: a transaction can commit after another that took a higher id, and
+ * a Galera cluster interleaves ids across nodes. So the log is not followed past the highest id
+ * seen: every poll reads all ids above `settled` that it has not applied yet, and `settled` moves
+ * only past ids seen at least `settleMs` ago. A lower id still missing then belongs to a
+ * transaction that took its id before one committed that long ago: far longer than any
+ * transaction here runs (inTransaction re-runs a failed one with new ids).
  */
 export class SearchSync {
   readonly index = new ProcedureSearchIndex()
-  private watermark = 0
+  /** Every change-log id at or below it has been applied (or was never committed). */
+  private settled = 0
+  /** Ids above `settled` already applied, with when this instance first saw them. */
+  private applied = new Map<number, number>()
   private vocabulary: SearchVocabulary = { symptoms: [], deviceTypes: [] }
   private evidence = new Map<number, Map<string, number>>()
   private evidenceTotals = new Map<string, number>()
   private ready: Promise<void> | null = null
   private polling = false
+
+  constructor(private readonly settleMs = SETTLE_MS) {}
 
   /** How often a procedure's causes were confirmed for the queried symptoms, out of all confirmed records with them. */
   readonly evidenceLookup: EvidenceLookup = (docId, symptoms) => {
@@ -57,9 +72,14 @@ export class SearchSync {
   }
 
   private async load() {
-    // The watermark is read before the documents, so a change committed meanwhile is applied
-    // again by the next poll rather than missed.
-    this.watermark = (await ChangeLogEntry.max<number, ChangeLogEntry>('id')) ?? 0
+    // The log is read before the documents, so what it holds is in them and a change committed
+    // meanwhile is applied by the next poll. Below the newest entry older than the settling time
+    // (by its own timestamp: there is no earlier sighting to go by) every id is settled.
+    const old = await ChangeLogEntry.findOne({ where: { createdAt: { [Op.lt]: new Date(Date.now() - this.settleMs) } }, order: [['id', 'DESC']], attributes: ['id'] })
+    this.settled = old?.id ?? 0
+    const recent = await ChangeLogEntry.findAll({ where: { id: { [Op.gt]: this.settled } }, attributes: ['id'], raw: true })
+    const now = Date.now()
+    this.applied = new Map(recent.map(e => [e.id, now]))
     await this.loadVocabulary()
     this.index.setVocabulary(this.vocabulary)
     const [docs] = await Promise.all([this.loadDocuments(), this.loadEvidence()])
@@ -120,39 +140,59 @@ export class SearchSync {
     this.evidenceTotals = totals
   }
 
-  /** Applies the change log past the watermark. Returns how many entries it applied. */
+  /** Applies the entries of the change log not applied yet. Returns how many it applied. */
   async poll(): Promise<number> {
     if (this.polling || !this.ready) return 0
     this.polling = true
     try {
       await this.ready
-      const entries = await ChangeLogEntry.findAll({ where: { id: { [Op.gt]: this.watermark } }, order: [['id', 'ASC']], limit: 2000 })
-      if (!entries.length) return 0
-      const procedures = new Set<number>()
-      let vocabulary = false
-      let evidence = false
-      for (const e of entries) {
-        if (e.kind === 'procedure' && e.procedureId) procedures.add(e.procedureId)
-        if (e.kind === 'vocabulary') vocabulary = true
-        if (e.kind === 'evidence') evidence = true
-      }
-      if (vocabulary) {
-        await this.loadVocabulary()
-        await this.loadMerged()
-        this.index.setVocabulary(this.vocabulary)
-      }
-      if (evidence) await this.loadEvidence()
-      if (procedures.size) {
-        const docs = await this.loadDocuments([...procedures])
-        const live = new Set(docs.map(d => d.id))
-        for (const d of docs) this.index.upsert(d)
-        for (const id of procedures) if (!live.has(id)) this.index.discard(id)
-      }
-      this.watermark = entries[entries.length - 1]!.id
+      const known = [...this.applied.keys()]
+      const entries = await ChangeLogEntry.findAll({
+        where: { id: { [Op.gt]: this.settled, ...(known.length ? { [Op.notIn]: known } : {}) } },
+        order: [['id', 'ASC']],
+        limit: 2000,
+      })
+      if (entries.length) await this.apply(entries)
+      this.settle()
       return entries.length
     }
     finally {
       this.polling = false
+    }
+  }
+
+  private async apply(entries: ChangeLogEntry[]) {
+    const procedures = new Set<number>()
+    let vocabulary = false
+    let evidence = false
+    for (const e of entries) {
+      if (e.kind === 'procedure' && e.procedureId) procedures.add(e.procedureId)
+      if (e.kind === 'vocabulary') vocabulary = true
+      if (e.kind === 'evidence') evidence = true
+    }
+    if (vocabulary) {
+      await this.loadVocabulary()
+      await this.loadMerged()
+      this.index.setVocabulary(this.vocabulary)
+    }
+    if (evidence) await this.loadEvidence()
+    if (procedures.size) {
+      const docs = await this.loadDocuments([...procedures])
+      const live = new Set(docs.map(d => d.id))
+      for (const d of docs) this.index.upsert(d)
+      for (const id of procedures) if (!live.has(id)) this.index.discard(id)
+    }
+    const now = Date.now()
+    for (const e of entries) this.applied.set(e.id, now)
+  }
+
+  /** Moves `settled` up past the lowest applied ids that were first seen long enough ago. */
+  private settle() {
+    const horizon = Date.now() - this.settleMs
+    for (const id of [...this.applied.keys()].sort((a, b) => a - b)) {
+      if (this.applied.get(id)! > horizon) break
+      this.settled = id
+      this.applied.delete(id)
     }
   }
 }
