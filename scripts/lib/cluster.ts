@@ -17,11 +17,11 @@ import {
  *
  * Ports, all movable: BENCHLORE_CLUSTER_PORT (default 3460) is the local proxy, +1… the app
  * instances, +10 the object store, +11 the mail catcher; the test cluster sits 20 below, the
- * bench cluster 20 above (the defaults stay clear of the test and bench stacks of checkouts
- * moved by BENCHLORE_PORT_OFFSET). BENCHLORE_CLUSTER_DB_PORT (3430) is the first database
- * node's client port, one per node after it (test and bench follow the local nodes).
+ * bench cluster 20 above. BENCHLORE_CLUSTER_DB_PORT (3430) is the first database node's client
+ * port, one per node after it (test and bench follow the local nodes).
  * BENCHLORE_CLUSTER_GALERA_PORT (4600) is the first node's replication port, ten apart per
- * node, each using three in a row.
+ * node, each using three in a row. BENCHLORE_PORT_OFFSET moves all of them as it moves the
+ * single-server stacks, so checkouts run side by side with offsets 100 apart.
  */
 export type ClusterKind = 'local' | 'test' | 'bench'
 
@@ -45,9 +45,10 @@ export function clusterProfile(kind: ClusterKind, env: NodeJS.ProcessEnv = proce
   const k = { local: 0, test: 1, bench: 2 }[kind]
   const nodes = num(env.BENCHLORE_CLUSTER_NODES, 3, 1, 9)
   const apps = num(env.BENCHLORE_CLUSTER_APPS, 2, 1, 9)
-  const http = num(env.BENCHLORE_CLUSTER_PORT, 3460) + { local: 0, test: -20, bench: 20 }[kind]
-  const dbPort = num(env.BENCHLORE_CLUSTER_DB_PORT, 3430) + nodes * k
-  const galeraPort = num(env.BENCHLORE_CLUSTER_GALERA_PORT, 4600) + 10 * nodes * k
+  const offset = num(env.BENCHLORE_PORT_OFFSET, 0, 0, 50_000)
+  const http = num(env.BENCHLORE_CLUSTER_PORT, 3460) + offset + { local: 0, test: -20, bench: 20 }[kind]
+  const dbPort = num(env.BENCHLORE_CLUSTER_DB_PORT, 3430) + offset + nodes * k
+  const galeraPort = num(env.BENCHLORE_CLUSTER_GALERA_PORT, 4600) + offset + 10 * nodes * k
   const dataDir = join(ROOT, '.data-cluster', kind)
   return {
     kind,
