@@ -1,4 +1,4 @@
-import { QueryTypes, type Transaction } from 'sequelize'
+import { QueryTypes, type Sequelize, type Transaction } from 'sequelize'
 import { useDb } from './index'
 
 /**
@@ -11,9 +11,10 @@ import { useDb } from './index'
  */
 export type RuleGuard = 'active-admins'
 
-export async function writeRuleGuard(name: RuleGuard, transaction: Transaction): Promise<void> {
+/** `db` is the connection `transaction` belongs to: the app's own unless given. */
+export async function writeRuleGuard(name: RuleGuard, transaction: Transaction, db: Sequelize = useDb()): Promise<void> {
   // An upsert: the guard holds even where its row is missing.
-  await useDb().query(
+  await db.query(
     'INSERT INTO rule_guards (name, version) VALUES (?, 1) ON DUPLICATE KEY UPDATE version = version + 1',
     { replacements: [name], transaction, type: QueryTypes.INSERT },
   )

@@ -2,6 +2,7 @@ import { randomBytes } from 'node:crypto'
 import { QueryTypes } from 'sequelize'
 import { describe, expect, it } from 'vitest'
 import { isDeadlock } from '../../server/db'
+import { writeRuleGuard } from '../../server/db/guards'
 import { DEMO, type ApiClient } from '../helpers/api'
 import { APP, NODES, client, clusterConflicts, onNode, pinned } from '../helpers/cluster'
 import { makeContent } from '../helpers/content'
@@ -88,8 +89,12 @@ describe('at least one active admin on a cluster', () => {
         const onA = await client(APP[0]!).login(x.email, FACTORY_PASSWORD)
         const onB = await client(APP[1]!).login(y.email, FACTORY_PASSWORD)
         const answers = await Promise.all([onA.patch(`/api/users/${y.id}`, { role: 'editor' }), onB.patch(`/api/users/${x.id}`, { role: 'editor' })])
-        expect(answers.map(a => a.status).sort(), JSON.stringify(answers.map(a => a.body))).toEqual([200, 409])
-        expect(answers.find(a => a.status === 409)!.body.message).toMatch(/at least one active admin/)
+        // The other request is refused: by the rule (409), or, when the winner's commit came
+        // first, already at the session check, since the demotion ended the caller's sessions (401).
+        const [winner, refused] = [...answers].sort((a, b) => a.status - b.status)
+        expect(winner!.status, JSON.stringify(answers.map(a => a.body))).toBe(200)
+        expect([401, 409], JSON.stringify(answers.map(a => a.body))).toContain(refused!.status)
+        expect(refused!.body.message).toMatch(refused!.status === 409 ? /at least one active admin/ : /session has ended/)
         const survivor = answers[0]!.status === 200 ? x : y
         const demoted = survivor === x ? y : x
         for (const [i, ids] of activeAdmins().entries()) expect(ids, `round ${round}, node ${NODES[i]!.name}`).toEqual([survivor.id])
@@ -100,6 +105,39 @@ describe('at least one active admin on a cluster', () => {
     }
     finally {
       if (others.length) onNode(NODES[0]!, `UPDATE users SET active = 1 WHERE id IN (${others.join(',')})`)
+      onNode(NODES[0]!, `UPDATE users SET active = 0 WHERE id IN (${x.id},${y.id})`)
+    }
+  })
+
+  it('certifies the guard row: of two admins demoted through two nodes, each transaction seeing both active, one commits', async () => {
+    const [x, y] = [await makeUser({ role: 'admin' }), await makeUser({ role: 'admin' })]
+    const [a, b] = [pinned(NODES[0]!), pinned(NODES[1]!)]
+    const demote = async (db: typeof a, transaction: Awaited<ReturnType<typeof a.transaction>>, id: number) => {
+      // What updateUser checks first: the pair is still there (read, so locked only on this node).
+      const seen = await db.query<{ id: number }>(`SELECT id FROM users WHERE id IN (${x.id},${y.id}) AND role = 'admin' AND active = 1 FOR UPDATE`, { transaction, type: QueryTypes.SELECT })
+      expect(seen).toHaveLength(2)
+      await db.query('UPDATE users SET role = \'editor\' WHERE id = ?', { replacements: [id], transaction, type: QueryTypes.UPDATE })
+      await writeRuleGuard('active-admins', transaction, db)
+    }
+    try {
+      const [ta, tb] = [await a.transaction(), await b.transaction()]
+      await demote(a, ta, x.id)
+      await demote(b, tb, y.id)
+      // Committed together, both write sets can pass certification before either is applied on
+      // the other's node, where its row locks would have stopped it; without the guard row the
+      // two touch different users and both commit.
+      const outcomes = await Promise.all([ta, tb].map(t => t.commit().then(() => null, (e: unknown) => e)))
+      await Promise.all([ta, tb].map(t => t.rollback().catch(() => { /* ended by its commit */ })))
+      const lost = outcomes.filter(o => o !== null)
+      expect(lost, String(lost)).toHaveLength(1)
+      expect(isDeadlock(lost[0]), String(lost[0])).toBe(true)
+      const kept = outcomes[0] === null ? y.id : x.id
+      for (const node of NODES) {
+        expect(onNode(node, `SELECT id FROM users WHERE id IN (${x.id},${y.id}) AND role = 'admin'`).map(r => Number(r[0])), `node ${node.name}`).toEqual([kept])
+      }
+    }
+    finally {
+      await Promise.all([a.close(), b.close()])
       onNode(NODES[0]!, `UPDATE users SET active = 0 WHERE id IN (${x.id},${y.id})`)
     }
   })

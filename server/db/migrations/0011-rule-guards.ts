@@ -15,7 +15,7 @@ export async function up({ context: q }: { context: QueryInterface }) {
   )
   if (twice.length) {
     // Drafts are an author's unsaved-elsewhere work: which one to keep is theirs to say.
-    throw new Error(`Authors with more than one open draft of a procedure (procedure/author: draft ids): ${twice.map(t => `${t.procedureId}/${t.authorId}: ${t.ids}`).join('; ')}. Submit or reject all but one of each, then migrate again.`)
+    throw new Error(`Authors with more than one open draft of a procedure (procedure/author: draft ids): ${twice.map(t => `${t.procedureId}/${t.authorId}: ${t.ids}`).join('; ')}. Submit all but one of each (an editor can then reject what is not wanted), then migrate again.`)
   }
   await q.sequelize.query(
     `ALTER TABLE revisions
