@@ -1,7 +1,9 @@
 import { DataTypes, Model, type CreationOptional, type InferAttributes, type InferCreationAttributes, type Sequelize } from 'sequelize'
 import { OUTCOMES, RECORD_STATUSES, type Outcome, type RecordStatus } from '../../../shared/types/records'
+import type { StepVerdict } from '../../../shared/types/verdicts'
 
-export interface StoredStep { value: string, note: string, done: boolean }
+/** A step as a record keeps it: what was typed, and the verdict and time the server gave it. */
+export interface StoredStep { value: string, note: string, done: boolean, verdict?: StepVerdict | null, readAt?: string | null }
 export interface StoredPart { name: string, partNumber?: string, cost: number }
 
 const json = <T>(field: string, fallback: T) => ({

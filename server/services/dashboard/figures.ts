@@ -62,5 +62,7 @@ export async function dashboard(range: { from: Date, to: Date }, technicianId?: 
     comebacks: { count: Number(cb.back ?? 0), rate: Number(cb.n ?? 0) ? Number(cb.back ?? 0) / Number(cb.n) : null },
     costs: { repairTotal: Number(cost.repair ?? 0) / 100, replacementTotal: Number(cost.replace_ ?? 0) / 100, comparedRecords: Number(cost.n ?? 0) },
     keptOutOfWaste: repaired,
+    decidingSteps: [],
+    flowBranches: [],
   }
 }
