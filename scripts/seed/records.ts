@@ -1,8 +1,9 @@
-import type { RevisionContent } from '../../shared/types/procedure'
 import type { Outcome } from '../../shared/types/records'
+import { followFlow } from '../../shared/utils/diagnosis'
 import { Procedure, RecordSymptom, RepairRecord, Revision, type User, useDb } from '../../server/db'
-import type { StoredStep } from '../../server/db/models/repair-record'
+import { rebuildLearnedCounts } from '../../server/services/diagnosis/learned'
 import { rebuildCauseCounts } from '../../server/services/evidence/counts'
+import { demoSteps, demoVerdicts } from './record-readings'
 import { DEMO_RECORD_PROFILE, type DemoPerson } from './demo-content'
 import { seededRandom } from '../../shared/utils/random'
 
@@ -16,26 +17,11 @@ function pick<T>(rand: () => number, weighted: Array<[T, number]>): T {
   return weighted[weighted.length - 1]![0]
 }
 
-/** A reading a bench would give: inside the window, or clearly outside when the step points to the confirmed cause. */
-function readingFor(step: RevisionContent['steps'][number], failing: boolean): string {
-  const m = step.measurement
-  if (!m) return ''
-  if (m.openExpected && m.min === undefined && m.max === undefined) return failing ? `0.3 ${m.unit}` : 'OL'
-  const lo = m.nominal !== undefined ? m.nominal * (1 - (m.tolerancePct ?? 0) / 100) : m.min
-  const hi = m.nominal !== undefined ? m.nominal * (1 + (m.tolerancePct ?? 0) / 100) : m.max
-  if (failing) {
-    if (m.quantity === 'diode_drop' || m.quantity === 'continuity') return m.quantity === 'diode_drop' ? '0.012 V' : 'OL'
-    if (lo !== undefined && lo > 0) return `${+(lo * 0.2).toPrecision(3)} ${m.unit}`
-    if (hi !== undefined) return `${+(hi * 3).toPrecision(3)} ${m.unit}`
-  }
-  const mid = lo !== undefined && hi !== undefined ? (lo + hi) / 2 : lo ?? hi ?? 0
-  return `${+mid.toPrecision(3)} ${m.unit}`
-}
-
 /**
  * At least 200 closed repair records for the demo, spread over the last six months, with the
  * uneven cause distributions of the demo profile (some causes common, some rare, comebacks,
- * units not worth repairing). Only when the workshop has no records yet.
+ * units not worth repairing). Their readings agree with the cause each confirms, and are timed
+ * step by step. Only when the workshop has no records yet.
  */
 export async function seedRecords(people: Record<DemoPerson, User>, count = 240): Promise<number> {
   if (await RepairRecord.count()) return 0
@@ -58,17 +44,17 @@ export async function seedRecords(people: Record<DemoPerson, User>, count = 240)
     }
     else if (rand() < profile.notEconomicalRate) outcome = 'not_economical'
     else if (rand() < 0.03) outcome = 'escalated'
-    const steps: Record<string, StoredStep> = {}
-    for (const s of content.steps) steps[s.key] = { value: readingFor(s, !!causeKey && !!s.failPointsTo?.includes(causeKey)), note: '', done: true }
     const started = new Date(Date.now() - (2 + rand() * 178) * 86_400_000)
-    const minutes = Math.round(profile.minutes[0] + rand() * (profile.minutes[1] - profile.minutes[0]))
+    const verdicts = demoVerdicts(content.steps, causeKey, outcome === 'escalated')
+    const { steps, minutes: stepMinutes } = demoSteps(content.steps, verdicts, started, rand)
+    const minutes = Math.max(stepMinutes + 5, Math.round(profile.minutes[0] + rand() * (profile.minutes[1] - profile.minutes[0])))
     const partsEur = outcome === 'repaired' ? profile.partsCostEur[0] + rand() * (profile.partsCostEur[1] - profile.partsCostEur[0]) : 0
     const extraSymptom = rand() < 0.25 ? content.symptoms.slice(0, 1) : []
     rows.push({
       status: 'closed', procedureId: proc.id, revisionId: rev.id, deviceType: content.deviceType,
       symptoms: [...new Set([...content.symptoms.slice(0, 1 + Math.floor(rand() * content.symptoms.length)), ...extraSymptom])],
       unitModel: content.appliesTo[0]?.split(',')[0] ?? '', unitSerial: `SN${(100000 + Math.floor(rand() * 899999))}`, jobRef: `HL-${2600 + i}`,
-      technicianId: technicians[Math.floor(rand() * technicians.length)]!.id, steps, notes: '',
+      technicianId: technicians[Math.floor(rand() * technicians.length)]!.id, steps, path: followFlow(content.steps, verdicts).path, notes: '',
       causeProcedureId: causeKey ? proc.id : null, causeKey, outcome,
       parts: partsEur ? [{ name: content.parts[0]?.name ?? 'Replacement part', partNumber: content.parts[0]?.partNumber, cost: Math.round(partsEur * 100) / 100 }] : [],
       partsCostCents: Math.round(partsEur * 100), minutes,
@@ -87,5 +73,6 @@ export async function seedRecords(people: Record<DemoPerson, User>, count = 240)
     await RecordSymptom.bulkCreate(created.flatMap(r => r.symptoms.map(symptom => ({ recordId: r.id, symptom }))), { transaction })
   })
   await rebuildCauseCounts()
+  await rebuildLearnedCounts()
   return rows.length
 }

@@ -1,10 +1,11 @@
 import type { MeasurementSpec } from '../../../shared/types/measurement'
 import type { RevisionContent } from '../../../shared/types/procedure'
 import type { ReadingResultDto, RecordDto } from '../../../shared/types/records'
-import { verdictCauses } from '../../../shared/types/verdicts'
+import { isPassingVerdict, verdictCauses } from '../../../shared/types/verdicts'
 import { evaluateReading } from '../../../shared/utils/readings'
 import type { RepairRecord } from '../../db'
 import { Attachment, DeviceType, Procedure, RecordAmendment, Revision, Symptom, User } from '../../db'
+import { recordReasoning } from '../diagnosis/record'
 import { candidateCauses, causeId } from '../evidence/causes'
 import { renderContent } from '../procedures/dto'
 import { toAttachmentDto } from '../uploads/attachments'
@@ -38,9 +39,11 @@ export async function toRecordDto(r: RepairRecord, user: User): Promise<RecordDt
   const steps: RecordDto['steps'] = {}
   const raisedCount = new Map<string, number>()
   for (const [key, s] of Object.entries(r.steps)) {
-    const result = evaluateStep(content?.steps.find(st => st.key === key), s.value)
-    steps[key] = { value: s.value, note: s.note, done: s.done, verdict: s.verdict ?? null, readAt: s.readAt ?? null, result }
-    if (proc && result.pass === false) for (const c of result.raises) raisedCount.set(causeId(proc.slug, c), (raisedCount.get(causeId(proc.slug, c)) ?? 0) + 1)
+    const step = content?.steps.find(st => st.key === key)
+    const verdict = s.verdict ?? null
+    steps[key] = { value: s.value, note: s.note, done: s.done, verdict, readAt: s.readAt ?? null, result: evaluateStep(step, s.value) }
+    // Failing verdicts of checks as well as of readings raise the causes they name.
+    if (proc && step && verdict && !isPassingVerdict(step, verdict)) for (const c of verdictCauses(step, verdict)) raisedCount.set(causeId(proc.slug, c), (raisedCount.get(causeId(proc.slug, c)) ?? 0) + 1)
   }
   let confirmed: RecordDto['confirmedCause'] = null
   if (r.causeKey && r.causeProcedureId) {
@@ -77,8 +80,8 @@ export async function toRecordDto(r: RepairRecord, user: User): Promise<RecordDt
     candidates: candidates.map(c => ({ id: causeId(c.procedureSlug, c.causeKey), label: c.label, procedureSlug: c.procedureSlug })),
     guide: rev && content ? { content, rendered: renderContent(content), attachments: await attachmentsOfContent(content) } : null,
     can: { edit: canEditRecord(user, r), close: canEditRecord(user, r), amend: canAmendRecord(user, r) },
-    closeDraft: null,
-    reasoning: null,
+    closeDraft: r.status === 'in_progress' ? r.closeDraft : null,
+    reasoning: proc && rev && content ? await recordReasoning(r, { procedureId: proc.id, slug: proc.slug, content }) : null,
   }
 }
 
