@@ -2147,7 +2147,7 @@ export const DEMO_RECORD_PROFILE: Record<string, DemoRecordProfile> = {
     notEconomicalRate: 0.04,
   },
   'vr240-half-cycle-flow': {
-    weight: 6,
+    weight: 14,
     causes: { switch_shorted: 0.3, bridge_shorted: 0.6, thermal_fuse_open: 0.1 },
     noFaultFound: 0.06,
     minutes: [20, 45],

@@ -69,8 +69,8 @@ export async function up({ context: q }: { context: QueryInterface }) {
 
 export async function down({ context: q }: { context: QueryInterface }) {
   for (const table of ['learned_branches', 'learned_minutes', 'learned_verdicts', 'learned_causes']) await q.dropTable(table)
-  await q.removeColumn('repair_records', 'close_draft')
-  await q.removeColumn('repair_records', 'path')
+  // removeColumn reads the foreign keys through an untyped query, which the mariadb driver refuses.
+  await q.sequelize.query('ALTER TABLE repair_records DROP COLUMN close_draft, DROP COLUMN path', { type: QueryTypes.UPDATE })
   // Earlier code reads failPointsTo only: give every step the causes of its failing verdicts
   // (the verdict map stays, and is ignored there).
   await eachRow<{ id: number, content: unknown }>(q, 'SELECT id, content FROM revisions WHERE 1 = 1', async (rows) => {
