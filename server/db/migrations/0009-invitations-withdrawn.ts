@@ -1,4 +1,4 @@
-import { DataTypes, type QueryInterface } from 'sequelize'
+import { DataTypes, QueryTypes, type QueryInterface } from 'sequelize'
 
 // An invitation withdrawn by an admin (directly, or by changing the invitee's role or
 // deactivating them before they accepted) can no longer be accepted. Mail may carry an HTML part
@@ -9,6 +9,8 @@ export async function up({ context: q }: { context: QueryInterface }) {
 }
 
 export async function down({ context: q }: { context: QueryInterface }) {
-  await q.removeColumn('outbox_messages', 'html_body')
-  await q.removeColumn('invitations', 'revoked_at')
+  // Typed rather than through removeColumn, whose untyped look-up of foreign keys the mariadb 3.5
+  // driver's answer breaks (DEVELOPERS.md, raw SQL).
+  await q.sequelize.query('ALTER TABLE outbox_messages DROP COLUMN html_body', { type: QueryTypes.UPDATE })
+  await q.sequelize.query('ALTER TABLE invitations DROP COLUMN revoked_at', { type: QueryTypes.UPDATE })
 }
