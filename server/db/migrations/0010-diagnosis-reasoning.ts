@@ -69,7 +69,7 @@ export async function up({ context: q }: { context: QueryInterface }) {
 
 export async function down({ context: q }: { context: QueryInterface }) {
   for (const table of ['learned_branches', 'learned_minutes', 'learned_verdicts', 'learned_causes']) await q.dropTable(table)
-  // removeColumn reads the foreign keys through an untyped query, which the mariadb driver refuses.
+  // Typed rather than through removeColumn (DEVELOPERS.md, raw SQL).
   await q.sequelize.query('ALTER TABLE repair_records DROP COLUMN close_draft, DROP COLUMN path', { type: QueryTypes.UPDATE })
   // Earlier code reads failPointsTo only: give every step the causes of its failing verdicts
   // (the verdict map stays, and is ignored there).
