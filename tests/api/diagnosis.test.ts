@@ -325,6 +325,21 @@ describe('a list of checks at the bench', () => {
     // A reading left unchanged keeps the time it was first read.
     const again = await read(record, { s_short: '0.55 V' })
     expect(again.steps.s_short.readAt).toBe(saved.steps.s_short.readAt)
+    // A save naming only the note keeps the reading, its verdict, its done mark and its time.
+    const noted = await tech.patch(`/api/records/${record.id}`, { version: record.version, steps: { s_short: { note: 'probe on the anode pad' } } })
+    expect(noted.status, JSON.stringify(noted.body)).toBe(200)
+    record.version = noted.body.record.version
+    expect(noted.body.record.steps.s_short).toMatchObject({ value: '0.55 V', note: 'probe on the anode pad', done: true, verdict: 'in_range', readAt: saved.steps.s_short.readAt })
+    // A done mark sent alone on a step without a reading stays (a look or a listen may need none).
+    const marked = await tech.patch(`/api/records/${record.id}`, { version: record.version, steps: { s_cap: { value: '' } } })
+    record.version = marked.body.record.version
+    expect(marked.body.record.steps.s_cap).toMatchObject({ value: '', done: false, verdict: null })
+    const byHand = await tech.patch(`/api/records/${record.id}`, { version: record.version, steps: { s_cap: { done: true } } })
+    expect(byHand.status, JSON.stringify(byHand.body)).toBe(200)
+    record.version = byHand.body.record.version
+    expect(byHand.body.record.steps.s_cap).toMatchObject({ value: '', done: true, verdict: null })
+    const noteOnly = await tech.patch(`/api/records/${record.id}`, { version: record.version, steps: { s_cap: { note: 'lid off, nothing bulging' } } })
+    expect(noteOnly.body.record.steps.s_cap).toMatchObject({ done: true, note: 'lid off, nothing bulging' })
   })
 
   it('keeps the close form across a reload, and clears it on closing', async () => {
