@@ -4,18 +4,16 @@
 // Target (QUALITY): GET /api/records/[id]/diagnosis p95 ≤ 20 ms server-side at 100k records.
 import { performance } from 'node:perf_hooks'
 import { QueryTypes } from 'sequelize'
-import { Procedure, RecordSymptom, RepairRecord, Revision, User } from '../../server/db'
-import { seedProcedures, seedVocabulary } from '../seed/procedures'
-import { seedDemoUsers } from '../seed/users'
+import { RecordSymptom, RepairRecord } from '../../server/db'
 import { DEMO_RECORD_PROFILE } from '../seed/demo-content'
 import { demoSteps, demoVerdicts } from '../seed/record-readings'
 import { rebuildCauseCounts } from '../../server/services/evidence/counts'
 import { evidenceFor } from '../../server/services/evidence/ranking'
 import { rebuildLearnedCounts } from '../../server/services/diagnosis/learned'
 import { diagnoseRecord } from '../../server/services/diagnosis/record'
-import { ObjectStore, s3ConfigFromEnv } from '../../server/services/storage'
 import { followFlow } from '../../shared/utils/diagnosis'
 import { openBenchDatabase, timings } from '../lib/bench-stack'
+import { seedBenchWorkshop } from './demo-workshop'
 import { seededRandom } from '../../shared/utils/random'
 
 const N = Number(process.env.BENCH_RECORDS ?? 100_000)
@@ -23,13 +21,7 @@ const rand = seededRandom(42)
 
 const bench = await openBenchDatabase()
 try {
-  const users = await seedDemoUsers()
-  await seedVocabulary()
-  await seedProcedures(users as never, new ObjectStore(s3ConfigFromEnv()))
-  const procs = await Procedure.findAll({ where: { status: 'active' } })
-  const revs = await Revision.findAll({ where: { id: procs.map(p => p.publishedRevisionId).filter((x): x is number => !!x) } })
-  const live = revs.map(r => ({ rev: r, proc: procs.find(p => p.id === r.procedureId)! })).filter(x => DEMO_RECORD_PROFILE[x.proc.slug])
-  const techs = await User.findAll({ where: { role: 'technician' } })
+  const { live, techs } = await seedBenchWorkshop()
   const pick = <T>(xs: T[]) => xs[Math.floor(rand() * xs.length)]!
 
   function recordOf(closed: boolean) {
