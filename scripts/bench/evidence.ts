@@ -3,16 +3,14 @@
 // Target (QUALITY): evidence p95 ≤ 20 ms at 100k records.
 import { performance } from 'node:perf_hooks'
 import { QueryTypes } from 'sequelize'
-import { Procedure, RecordSymptom, RepairRecord, Revision, User } from '../../server/db'
-import { seedProcedures, seedVocabulary } from '../seed/procedures'
-import { seedDemoUsers } from '../seed/users'
+import { RecordSymptom, RepairRecord } from '../../server/db'
 import { DEMO_RECORD_PROFILE } from '../seed/demo-content'
 import { rebuildCauseCounts } from '../../server/services/evidence/counts'
 import { evidenceFor } from '../../server/services/evidence/ranking'
 import { listRecords } from '../../server/services/records/listing'
-import { ObjectStore, s3ConfigFromEnv } from '../../server/services/storage'
 import { RecordListQuery } from '../../shared/types/records'
 import { openBenchDatabase, timings } from '../lib/bench-stack'
+import { seedBenchWorkshop } from './demo-workshop'
 import { seededRandom } from '../../shared/utils/random'
 
 const N = Number(process.env.BENCH_RECORDS ?? 100_000)
@@ -20,13 +18,7 @@ const rand = seededRandom(42)
 
 const bench = await openBenchDatabase()
 try {
-  const users = await seedDemoUsers()
-  await seedVocabulary()
-  await seedProcedures(users as never, new ObjectStore(s3ConfigFromEnv()))
-  const procs = await Procedure.findAll({ where: { status: 'active' } })
-  const revs = await Revision.findAll({ where: { id: procs.map(p => p.publishedRevisionId).filter((x): x is number => !!x) } })
-  const live = revs.map(r => ({ rev: r, proc: procs.find(p => p.id === r.procedureId)! })).filter(x => DEMO_RECORD_PROFILE[x.proc.slug])
-  const techs = await User.findAll({ where: { role: 'technician' } })
+  const { live, techs } = await seedBenchWorkshop()
 
   const t0 = performance.now()
   for (let done = 0; done < N; done += 5000) {

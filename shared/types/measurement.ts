@@ -110,11 +110,18 @@ export const MeasurementSpec = z
   })
 export type MeasurementSpec = z.infer<typeof MeasurementSpec>
 
-/** POST /api/readings/evaluate: a typed reading judged against a step's measurement. */
+/**
+ * POST /api/readings/evaluate: a typed reading judged against a step's measurement. A reading
+ * that fails only through a likely slip (`580MV` on a 0.4–0.9 V diode test) is not judged: its
+ * `verdict` and `pass` are null and `question` asks what was meant (`did you mean 580 mV?`),
+ * with `suggestion` the reading as it would fit (`580 mV`). Otherwise both are null.
+ */
 export interface ReadingEvaluationDto {
   parsed: { value: number | null, unit: BaseUnit | null, display: string, open: boolean }
-  verdict: 'in_range' | 'low' | 'high' | 'open'
-  pass: boolean
+  verdict: 'in_range' | 'low' | 'high' | 'open' | null
+  pass: boolean | null
   expected: string
   raises: string[]
+  question: string | null
+  suggestion: string | null
 }

@@ -1,6 +1,8 @@
 import { z } from 'zod'
 import { HAZARDS } from './hazards'
 import { MeasurementSpec } from './measurement'
+import { DraftStepReasoningFields, StepReasoningFields, foldFailPointsTo } from './verdicts'
+import { flowIssues } from '../utils/diagnosis/flow-validation'
 
 export const REVISION_STATES = ['draft', 'in_review', 'published', 'superseded', 'changes_requested', 'rejected'] as const
 export type RevisionState = (typeof REVISION_STATES)[number]
@@ -80,11 +82,19 @@ function revisionFields<S extends Strictness>(strictness: S) {
   const step = z.object({
     key,
     title: f.needed(160, 2),
-    instruction: f.choose(() => markdown(20000), () => markdown(20000).default('')),
+    instruction: f.choose(() => markdown(20000).refine(s => s.trim() !== '', 'say what to do in this step'), () => markdown(20000).default('')),
     measurement: f.choose(() => MeasurementSpec.optional(), () => DraftMeasurement.optional()),
+    /**
+     * Accepted on input only, as shorthand for the same causes on every failing verdict: parsing
+     * writes it out into `verdicts` and drops it, so parsed content never carries it.
+     */
     failPointsTo: z.array(key).max(20).optional(),
+    /** What each verdict means: the causes it points to, and in a flow where it leads. */
+    verdicts: f.choose(() => StepReasoningFields.verdicts, () => DraftStepReasoningFields.verdicts),
+    /** The author's estimate of the step's minutes, until records time it. */
+    minutes: f.choose(() => StepReasoningFields.minutes, () => DraftStepReasoningFields.minutes),
     imageIds: z.array(z.number().int().positive()).max(12).optional(),
-  })
+  }).overwrite(foldFailPointsTo)
   const part = z.object({
     name: f.needed(160),
     partNumber: z.string().trim().max(80).optional(),
@@ -118,10 +128,9 @@ export const RevisionContent = z
     c.steps.forEach((step, i) => {
       if (stepKeys.has(step.key)) ctx.addIssue({ code: 'custom', path: ['steps', i, 'key'], message: `step key "${step.key}" is used twice` })
       stepKeys.add(step.key)
-      step.failPointsTo?.forEach((k, j) => {
-        if (!causeKeys.has(k)) ctx.addIssue({ code: 'custom', path: ['steps', i, 'failPointsTo', j], message: `step "${step.title}" points to cause "${k}", which is not among the causes` })
-      })
     })
+    // Verdicts naming unknown causes or steps, verdicts a step cannot give, and in a flow loops and unreachable steps.
+    for (const issue of flowIssues(c)) ctx.addIssue({ code: 'custom', path: issue.path, message: issue.message })
     if (new Set(c.symptoms).size !== c.symptoms.length) ctx.addIssue({ code: 'custom', path: ['symptoms'], message: 'a symptom is listed twice' })
     if (c.hazards.includes('none') && c.hazards.length > 1) ctx.addIssue({ code: 'custom', path: ['hazards'], message: '"none" cannot be combined with other hazards' })
   })

@@ -1,4 +1,6 @@
 import { z } from 'zod'
+import type { StepVerdict } from './verdicts'
+import type { LearnedStats } from '../utils/diagnosis/stats'
 
 export const OUTCOMES = ['repaired', 'not_economical', 'escalated', 'no_fault_found'] as const
 export type Outcome = (typeof OUTCOMES)[number]
@@ -45,6 +47,20 @@ export const RecordCreateBody = z.object({
   }).default({ model: '', serial: '', jobRef: '' }),
 }).refine(b => b.procedureSlug || (b.deviceType && b.symptoms.length), { message: 'start from a procedure, or give a device type and at least one symptom', path: ['procedureSlug'] })
 
+/**
+ * The close form as the technician fills it in, saved as they go (`closeDraft` of
+ * `PATCH /api/records/[id]`) so a reload keeps it. Loose: closing checks it in full.
+ */
+export const CloseDraft = z.object({
+  /** `procedureSlug:causeKey`, as the close form confirms it. */
+  confirmedCause: z.string().trim().max(160).nullable().default(null),
+  outcome: z.enum(OUTCOMES).nullable().default(null),
+  parts: z.array(PartUsed.extend({ name: z.string().trim().max(160) })).max(40).default([]),
+  minutes: z.number().int().min(0).max(10_000).nullable().default(null),
+  replacementCost: money.nullable().default(null),
+})
+export type CloseDraft = z.infer<typeof CloseDraft>
+
 export const RecordPatchBody = z.object({
   version: z.number().int().positive(),
   unit: z.object({ model: z.string().trim().max(120), serial: z.string().trim().max(120), jobRef: z.string().trim().max(80) }).partial().optional(),
@@ -52,6 +68,8 @@ export const RecordPatchBody = z.object({
   steps: z.record(z.string().max(40), StepPatch).optional(),
   notes: z.string().max(8000).optional(),
   photoIds: z.array(z.number().int().positive()).max(24).optional(),
+  /** The close form so far; null clears it. */
+  closeDraft: CloseDraft.nullable().optional(),
 })
 
 export const RecordCloseBody = z.object({
@@ -109,12 +127,43 @@ export type RecordListQuery = z.infer<typeof RecordListQuery>
 
 export interface ReadingResultDto {
   value: string
-  /** Server evaluation of `value` against the step's spec (null when empty or no spec). */
+  /** Server evaluation of `value` against the step's spec (null when empty, unreadable, questioned or no spec). */
   verdict: 'in_range' | 'low' | 'high' | 'open' | null
   pass: boolean | null
   display: string | null
   error: string | null
+  /** The causes the verdict points to (its own entry of the step's verdict map). */
   raises: string[]
+  /** A reading that fails only through a likely slip is asked about instead: `did you mean 580 mV?`. */
+  question: string | null
+  /** The reading as it would fit, e.g. `580 mV`. */
+  suggestion: string | null
+}
+
+/** One step of a record: what the technician typed, and what the server made of it. */
+export interface RecordStepDto {
+  value: string
+  note: string
+  /** True once a readable reading is stored; a step without a reading may be marked done by hand. */
+  done: boolean
+  /** The step's verdict: in range, low, high or open for a measured step, pass or fail for a check. */
+  verdict: StepVerdict | null
+  /** When the reading that gave the verdict was stored (ISO 8601), for the minutes per step. */
+  readAt: string | null
+  result: ReadingResultDto
+}
+
+/**
+ * What the browser needs to reason about a record exactly as the server does: the priors of
+ * the guide's causes from today's evidence ranking (device type and symptoms), the share kept for
+ * a cause not listed, and the counts learned from closed records of the procedure. Feed them to
+ * `causeProbabilities`, `orderSteps` and `followFlow` with the record's verdicts.
+ */
+export interface RecordReasoningDto {
+  /** causeKey → prior weight (normalised over the guide's causes). */
+  priors: Record<string, number>
+  unlistedPrior: number
+  stats: LearnedStats
 }
 
 export interface RecordDto {
@@ -126,7 +175,7 @@ export interface RecordDto {
   symptoms: Array<{ slug: string, name: string }>
   unit: { model: string, serial: string, jobRef: string }
   technician: { id: number, name: string }
-  steps: Record<string, { value: string, note: string, done: boolean, result: ReadingResultDto }>
+  steps: Record<string, RecordStepDto>
   notes: string
   /** Causes raised by failing readings so far, with how many readings point at each. */
   raised: Array<{ cause: string, label: string, readings: number }>
@@ -147,6 +196,31 @@ export interface RecordDto {
   /** Steps to walk (from the pinned revision; empty for a record started from symptoms alone). */
   guide: { content: import('./procedure').RevisionContent, rendered: import('./procedure-api').RenderedContent, attachments: Record<string, import('./procedure-api').AttachmentDto> } | null
   can: { edit: boolean, close: boolean, amend: boolean }
+  /** The close form saved as it is filled in; null when nothing is saved or once closed. */
+  closeDraft: CloseDraft | null
+  /** The inputs of live reasoning for the guide procedure; null for a record without a guide. */
+  reasoning: RecordReasoningDto | null
+}
+
+/**
+ * GET /api/records/[id]/diagnosis: where the diagnosis stands. `causes` and `unlisted` sum to 1.
+ * A procedure that is not a flow suggests every untested step by the p/c rule; a flow suggests
+ * only the step it leads to now, and nothing once it has concluded.
+ */
+export interface DiagnosisDto {
+  /** The guide's causes, most probable first; `id` is `procedureSlug:causeKey`, as the close form confirms it. */
+  causes: Array<{ id: string, label: string, probability: number }>
+  /** P(the cause is none of those listed). */
+  unlisted: number
+  /** Untested steps, the best first by findsFault / minutes (in a flow, the step it leads to now, if any). */
+  next: Array<{ stepKey: string, title: string, minutes: number, findsFault: number, minutesFrom: 'records' | 'author' | 'default' }>
+  /** The step keys the flow took, in order (empty for a procedure that is not a flow). */
+  path: string[]
+  /** The cause the flow concluded, or `{ id: 'escalate', label: 'Escalate' }`; null while it goes on. */
+  concluded: { id: string, label: string } | null
+  /** Said when the flow's conclusion disagrees strongly with the probabilities. */
+  warning: string | null
+  isFlow: boolean
 }
 
 export interface RecordListItemDto {
@@ -179,6 +253,22 @@ export interface DashboardDto {
   comebacks: { count: number, rate: number | null }
   costs: { repairTotal: number, replacementTotal: number, comparedRecords: number }
   keptOutOfWaste: number
+  /**
+   * Per procedure, the steps whose verdict named the cause finally confirmed: `decided` of the
+   * `of` closed records (with a listed cause confirmed) that read the step. All the team's
+   * records of the procedure, whatever the range: this is about the procedure, not the period.
+   */
+  decidingSteps: Array<{ procedureSlug: string, procedureTitle: string, steps: Array<{ stepKey: string, title: string, decided: number, of: number }> }>
+  /**
+   * Per flow (a live procedure that branches), every branch in step and verdict order: how many
+   * closed records took it and, for a branch that concludes, how many confirmed its conclusion
+   * (`confirmed` is null for a branch that leads to a step). All the team's records, as above.
+   */
+  flowBranches: Array<{
+    procedureSlug: string
+    procedureTitle: string
+    branches: Array<{ stepKey: string, stepTitle: string, verdict: StepVerdict, taken: number, concludes: { id: string, label: string } | null, confirmed: number | null }>
+  }>
 }
 
 export interface EvidenceCauseDto {

@@ -186,6 +186,35 @@ export function verdictsOf(step: Pick<ReasoningStep, 'measurement' | 'failPoints
   return out
 }
 
+/** A verdict map as a draft or a complete revision holds it. */
+type LooseVerdictMap = Partial<Record<StepVerdict, { causes?: string[], next?: string, conclude?: string } | undefined>>
+
+/**
+ * The step with the `failPointsTo` shorthand written out in its verdict map: every failing
+ * verdict the step can give that names no causes of its own takes the shorthand's causes, and
+ * the shorthand goes. `verdictsOf` reads the same meaning before and after, so stored content
+ * can carry the map alone. A step without the shorthand comes back unchanged.
+ *
+ * @example
+ * foldFailPointsTo({ key: 'd1', title: 'D1', failPointsTo: ['d1_failed'],
+ *   measurement: { quantity: 'diode_drop', unit: 'V', min: 0.4, max: 0.9 }, verdicts: { low: { causes: ['d1_shorted'] } } })
+ * // → { key: 'd1', title: 'D1', measurement: …, verdicts: { low: { causes: ['d1_shorted'] },
+ * //     high: { causes: ['d1_failed'] }, open: { causes: ['d1_failed'] } } }
+ */
+export function foldFailPointsTo<S extends { measurement?: WindowSpec, failPointsTo?: string[], verdicts?: LooseVerdictMap }>(step: S): S {
+  if (!('failPointsTo' in step)) return step
+  const { failPointsTo, ...rest } = step
+  const out = rest as S
+  if (!failPointsTo?.length) return out
+  const verdicts: LooseVerdictMap = { ...step.verdicts }
+  for (const verdict of possibleVerdicts(step)) {
+    if (isPassingVerdict(step, verdict) || verdicts[verdict]?.causes !== undefined) continue
+    verdicts[verdict] = { ...verdicts[verdict], causes: [...new Set(failPointsTo)] }
+  }
+  out.verdicts = verdicts as S['verdicts']
+  return out
+}
+
 /**
  * The cause keys a verdict of the step points to ([] for a verdict the step cannot give).
  *

@@ -22,8 +22,8 @@ describe('repair records', () => {
     testDb()
     const proc = await Procedure.findOne({ where: { slug: SLUG } })
     expect(record.revision.id).toBe(proc!.publishedRevisionId)
-    type Step = { key: string, measurement?: { min?: number, max?: number, unit: string }, failPointsTo?: string[] }
-    const step = (record.guide.content.steps as Step[]).find(s => s.measurement?.min !== undefined && s.measurement.min > 0 && s.failPointsTo?.length)!
+    type Step = { key: string, measurement?: { min?: number, max?: number, unit: string }, verdicts?: { low?: { causes?: string[] } } }
+    const step = (record.guide.content.steps as Step[]).find(s => s.measurement?.min !== undefined && s.measurement.min > 0 && s.verdicts?.low?.causes?.length)!
     // Ten times below the lower limit: a failing reading whatever the step measures.
     const low = `${step.measurement!.min! / 10} ${step.measurement!.unit}`
     const saved = await tech.patch(`/api/records/${record.id}`, { version: record.version, steps: { [step.key]: { value: low, note: 'reads low', done: true } } })

@@ -5,6 +5,7 @@ import sharp from 'sharp'
 import type { Locator, Page } from 'playwright-core'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { RevisionDetailDto } from '#shared/types/procedure-api'
+import { verdictCauses } from '#shared/types/verdicts'
 import { DEMO, DEMO_PASSWORD, signedIn, type ApiClient } from '../helpers/api'
 import { openBrowser, openHydrated, screenshot } from '../helpers/browser'
 
@@ -157,7 +158,9 @@ describe('writing, reviewing and publishing a procedure in Chromium', () => {
     const measured = saved.content.steps[1]!
     measuredStepKey = measured.key
     expect(measured.measurement).toMatchObject({ quantity: 'diode_drop', unit: 'V', min: 0.4, max: 0.9 })
-    expect(measured.failPointsTo).toEqual([mosfetKey])
+    // Stored per verdict: the cause ticked for a failing reading is named by every failing verdict.
+    expect(measured.failPointsTo).toBeUndefined()
+    for (const verdict of ['low', 'high', 'open'] as const) expect(verdictCauses(measured, verdict)).toEqual([mosfetKey])
     expect(measured.imageIds).toEqual([imageId])
     await screenshot(page, 'review-flow-1-draft')
 

@@ -15,7 +15,7 @@ function fakeRecordServer(start: RecordDto) {
   const fake = fakeFetch((url, { method, body }) => {
     if (url !== `/api/records/${server.record.id}` || method !== 'PATCH') throw apiError(500, `unexpected ${method} ${url}`)
     if (body.version !== server.record.version) throw apiError(409, 'saved elsewhere', { current: structuredClone(server.record) })
-    const steps = Object.fromEntries(Object.entries(body.steps as RecordDto['steps']).map(([k, s]) => [k, { ...s, result: { value: s.value, verdict: null, pass: null, display: null, error: null, raises: [] } }]))
+    const steps = Object.fromEntries(Object.entries(body.steps as RecordDto['steps']).map(([k, s]) => [k, { ...s, result: { value: s.value, verdict: null, pass: null, display: null, error: null, raises: [], question: null, suggestion: null } }]))
     server.record = { ...server.record, unit: body.unit, notes: body.notes, steps, version: server.record.version + 1 }
     return { record: structuredClone(server.record) }
   })

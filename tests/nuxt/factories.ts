@@ -11,7 +11,7 @@ export function mockGuideContent(overrides: Partial<RevisionContent> = {}): Revi
   const content = RevisionContent.parse({
     ...base,
     causes: [...base.causes ?? [], { key: 'dry-cap', name: 'Dried-out supply capacitor', detail: '', prior: 0.1 }],
-    steps: [...base.steps ?? [], { key: 'look', title: 'Look for bulging capacitors', instruction: '' }],
+    steps: [...base.steps ?? [], { key: 'look', title: 'Look for bulging capacitors', instruction: 'Under a bright lamp, tops and bases.' }],
   })
   // Overrides may make it incomplete on purpose (a draft not ready for review).
   return { ...content, ...overrides }
@@ -46,6 +46,8 @@ export function mockRecord(overrides: Partial<RecordDto> = {}): RecordDto {
     candidates: content.causes.map(c => ({ id: `dimmer-stays-dark:${c.key}`, label: c.name, procedureSlug: 'dimmer-stays-dark' })),
     guide: { content, rendered: { summary: '', fix: '', verification: '', causes: {}, steps: {} }, attachments: {} },
     can: { edit: true, close: true, amend: false },
+    closeDraft: null,
+    reasoning: null,
     ...overrides,
   }
 }

@@ -3,6 +3,9 @@ import { describe, expect, it } from 'vitest'
 import { RevisionContent } from '#shared/types/procedure'
 import type { RevisionContent as ParsedContent } from '#shared/types/procedure'
 import { expectedWindow, evaluateReading } from '#shared/utils/readings'
+import { isPassingVerdict, verdictCauses, verdictsOf } from '#shared/types/verdicts'
+import { causeProbabilities, followFlow, isFlow, judgeCheck, validateFlow } from '#shared/utils/diagnosis'
+import { DIMMER_CAUSES, DIMMER_STEPS } from './fixtures/two-wire-dimmer-flow'
 import {
   DEMO_DEVICE_TYPES,
   DEMO_IMAGES,
@@ -14,6 +17,8 @@ import {
 } from '~~/scripts/seed/demo-content'
 import type { DemoProcedure, DemoRevision } from '~~/scripts/seed/demo-content'
 import { DEMO_IMAGE_HEIGHT, DEMO_IMAGE_WIDTH, renderDemoImage } from '~~/scripts/seed/demo-images'
+import { demoSteps, demoVerdicts, readingFor } from '~~/scripts/seed/record-readings'
+import { seededRandom } from '#shared/utils/random'
 
 const DECIDED = new Set(['published', 'superseded', 'rejected', 'changes_requested'])
 const ALL_REVISIONS = DEMO_PROCEDURES.flatMap(p => p.revisions.map((r, i) => ({ procedure: p, revision: r, index: i })))
@@ -108,7 +113,7 @@ describe('demo revisions', () => {
       expect(c.steps.length, label).toBeGreaterThanOrEqual(3)
       expect(c.steps.length, label).toBeLessThanOrEqual(8)
       expect(c.causes.reduce((sum, x) => sum + x.prior, 0), label).toBeCloseTo(1, 9)
-      const raised = new Set(c.steps.flatMap(s => s.failPointsTo ?? []))
+      const raised = new Set(c.steps.flatMap(s => Object.values(verdictsOf(s)).flatMap(m => m.causes)))
       for (const cause of c.causes) expect(raised.has(cause.key), `${label}: ${cause.key}`).toBe(true)
     }
   })
@@ -211,12 +216,14 @@ describe('demo readings against trade facts', () => {
       const { min, max } = expectedWindow(step.measurement!)
       expect(min, `${slug}/${step.key}`).toBeGreaterThanOrEqual(0.4)
       expect(max, `${slug}/${step.key}`).toBeLessThanOrEqual(0.9)
-      const shorted = evaluateReading('0.012 V', step.measurement!, step.failPointsTo)
-      expect(shorted.ok && !shorted.pass && shorted.raises.length > 0, `${slug}/${step.key}`).toBe(true)
-      const open = evaluateReading('OL', step.measurement!, step.failPointsTo)
+      // A shorted junction reads low; the step names a cause for a short (low) or an open junction (OL).
+      const shorted = evaluateReading('0.012 V', step.measurement!)
+      expect(shorted.ok && shorted.verdict === 'low', `${slug}/${step.key}`).toBe(true)
+      expect([...verdictCauses(step, 'low'), ...verdictCauses(step, 'open')].length, `${slug}/${step.key}`).toBeGreaterThan(0)
+      const open = evaluateReading('OL', step.measurement!)
       expect(open.ok && !open.pass, `${slug}/${step.key}`).toBe(true)
       // 0.55 V: a good junction, and a typical MOSFET body diode (0.4–0.7 V, common practice).
-      const good = evaluateReading('0.55', step.measurement!, step.failPointsTo)
+      const good = evaluateReading('0.55', step.measurement!)
       expect(good.ok && good.pass, `${slug}/${step.key}`).toBe(true)
     }
   })
@@ -232,15 +239,21 @@ describe('demo readings against trade facts', () => {
     // A welded relay contact, a shorted TRIAC or a failed varistor conducts; a healthy one reads
     // open (common practice).
     const relay = stepOf('px10-stays-on', 'relay_rest')
-    expect(evaluateReading('OL', relay.measurement!, relay.failPointsTo)).toMatchObject({ ok: true, pass: true })
-    expect(evaluateReading('0.3 Ω', relay.measurement!, relay.failPointsTo)).toMatchObject({ ok: true, pass: false, raises: ['relay_welded'] })
+    expect(evaluateReading('OL', relay.measurement!)).toMatchObject({ ok: true, pass: true })
+    expect(evaluateReading('0.3 Ω', relay.measurement!)).toMatchObject({ ok: true, pass: false, verdict: 'low' })
+    expect(verdictCauses(relay, 'low')).toEqual(['relay_welded'])
     const triac = stepOf('pd400-dead-after-lamp-failure', 'triac')
-    expect(evaluateReading('OL', triac.measurement!, triac.failPointsTo)).toMatchObject({ pass: true })
-    expect(evaluateReading('4R7', triac.measurement!, triac.failPointsTo)).toMatchObject({ pass: false, raises: ['triac_short'] })
+    expect(evaluateReading('OL', triac.measurement!)).toMatchObject({ pass: true })
+    expect(evaluateReading('4R7', triac.measurement!)).toMatchObject({ pass: false, verdict: 'low' })
+    expect(verdictCauses(triac, 'low')).toEqual(['triac_short'])
     // Thermal and glass fuses: continuity when intact, OL when blown (common practice).
     const fuse = stepOf('pd400-dead-after-lamp-failure', 'fuse')
-    expect(evaluateReading('OL', fuse.measurement!, fuse.failPointsTo)).toMatchObject({ pass: false, raises: ['fuse_open_lamp_arc', 'triac_short'] })
-    expect(evaluateReading('0.1 Ω', fuse.measurement!, fuse.failPointsTo)).toMatchObject({ pass: true })
+    expect(evaluateReading('OL', fuse.measurement!)).toMatchObject({ pass: false, verdict: 'open' })
+    expect(verdictCauses(fuse, 'open')).toEqual(['fuse_open_lamp_arc', 'triac_short'])
+    expect(evaluateReading('0.1 Ω', fuse.measurement!)).toMatchObject({ pass: true })
+    const tf1 = stepOf('vr240-half-cycle-flow', 'fuse')
+    expect(evaluateReading('OL', tf1.measurement!)).toMatchObject({ pass: false, verdict: 'open' })
+    expect(verdictCauses(tf1, 'open')).toEqual(['thermal_fuse_open'])
     const openSteps = currentSteps.filter(x => x.step.measurement?.openExpected)
     expect(openSteps.length).toBeLessThanOrEqual(currentSteps.length / 10)
   })
@@ -384,6 +397,84 @@ describe('demo record profile', () => {
     expect(profile.partsCostEur[0]).toBeGreaterThanOrEqual(0)
     expect(profile.partsCostEur[0]).toBeLessThan(profile.partsCostEur[1])
     expect(profile.partsCostEur[1]).toBeLessThan(profile.replacementCostEur)
+  })
+})
+
+describe('demo steps and their verdicts', () => {
+  const live = DEMO_PROCEDURES.filter(p => published(p)).map(p => ({ slug: p.slug, content: parsed(published(p)!) }))
+
+  it('gives every step of a live procedure an estimate of its minutes', () => {
+    for (const { slug, content } of live) for (const step of content.steps) expect(step.minutes, `${slug}/${step.key}`).toBeGreaterThan(0)
+  })
+
+  it('tells a short from an open junction where a diode test has both', () => {
+    // REFERENCES "Multimeter diode test": shorted < 0.050 V both ways, open OL both ways.
+    const bridge = stepOf('vr240-half-cycle-flicker', 'bridge_low')
+    expect(verdictCauses(bridge, 'low')).toEqual(['bridge_short'])
+    expect(verdictCauses(bridge, 'open')).toEqual([])
+    const q1 = stepOf('vr240-stuck-at-full', 'q1_ds')
+    expect(verdictCauses(q1, 'low')).toEqual(['q1_short'])
+    expect(verdictCauses(q1, 'open')).not.toContain('q1_short')
+  })
+
+  it('publishes the two-wire dimmer flow: the same branches as the fixture, valid as a flow', () => {
+    // The two-wire dimmer flow (common practice, the product brief's domain facts).
+    const flow = parsed(published(procedureBySlug('vr240-half-cycle-flow'))!)
+    expect(isFlow(flow.steps)).toBe(true)
+    expect(validateFlow(flow)).toEqual({})
+    expect(flow.steps.map(s => s.key)).toEqual(DIMMER_STEPS.map(s => s.key))
+    expect(flow.causes.map(c => c.key)).toEqual(DIMMER_CAUSES.map(c => c.key))
+    for (const step of DIMMER_STEPS) {
+      const demo = flow.steps.find(s => s.key === step.key)!
+      for (const [verdict, entry] of Object.entries(step.verdicts ?? {})) {
+        expect(demo.verdicts?.[verdict as keyof typeof demo.verdicts], `${step.key} ${verdict}`).toEqual(entry)
+      }
+    }
+  })
+})
+
+describe('demo records agree with their confirmed causes', () => {
+  const active = DEMO_PROCEDURES.filter(p => !p.retired && published(p))
+  const cases = active.flatMap((p) => {
+    const content = parsed(published(p)!)
+    return [...content.causes.map(c => c.key), null].map(cause => [`${p.slug}: ${cause ?? 'no fault found'}`, content, cause] as const)
+  })
+
+  it.each(cases)('%s', (_label, content, cause) => {
+    const verdicts = demoVerdicts(content.steps, cause, false)
+    const { steps } = demoSteps(content.steps, verdicts, new Date('2026-03-02T09:00:00Z'), seededRandom(7))
+    for (const step of content.steps) {
+      const verdict = verdicts[step.key]
+      if (!verdict) continue
+      // The typed reading reads back as the verdict it was written for.
+      const value = readingFor(step, verdict)
+      expect(steps[step.key]!.value).toBe(value)
+      const judged = step.measurement ? evaluateReading(value, step.measurement) : { ok: true, verdict: judgeCheck(value) }
+      expect(judged.ok && judged.verdict, `${step.key}: ${value}`).toBe(verdict)
+      // In a list of checks, a failing verdict names the cause the record confirms.
+      if (!isFlow(content.steps) && !isPassingVerdict(step, verdict)) expect(verdictCauses(step, verdict), `${step.key} ${verdict}`).toContain(cause)
+    }
+    if (isFlow(content.steps)) {
+      expect(followFlow(content.steps, verdicts).concluded).toBe(cause ?? 'escalate')
+    }
+    else {
+      expect(Object.keys(verdicts).sort()).toEqual(content.steps.map(s => s.key).sort())
+    }
+    if (cause !== null) {
+      // With the authors' priors and no records, the readings make the confirmed cause more likely than before.
+      const { causes } = causeProbabilities({ causes: content.causes, steps: content.steps, observed: verdicts })
+      const mine = causes.find(c => c.key === cause)!
+      expect(mine.probability, cause).toBeGreaterThan(mine.prior)
+    }
+  })
+
+  it('times each reading after the one before, within the job', () => {
+    const content = parsed(published(procedureBySlug('vr240-stuck-at-full'))!)
+    const start = new Date('2026-03-02T09:00:00Z')
+    const { steps, minutes } = demoSteps(content.steps, demoVerdicts(content.steps, 'q1_short', false), start, seededRandom(3))
+    const times = content.steps.map(s => Date.parse(steps[s.key]!.readAt!))
+    for (let i = 1; i < times.length; i++) expect(times[i]!).toBeGreaterThan(times[i - 1]!)
+    expect(times[times.length - 1]! - start.getTime()).toBe(minutes * 60_000)
   })
 })
 

@@ -196,7 +196,7 @@ describe('autosave and stale saves', () => {
     draft.addCause()
     const i = draft.content.causes.length - 1
     const step = draft.content.steps[0]!
-    step.failPointsTo = [...step.failPointsTo, draft.content.causes[i]!.key]
+    step.failPointsTo = [...(step.failPointsTo ?? []), draft.content.causes[i]!.key]
     draft.renameCause(i, 'Gate resistor R7 open')
     expect(draft.content.causes[i]!.key).toBe('gate_resistor_r7_open')
     expect(step.failPointsTo).toContain('gate_resistor_r7_open')

@@ -8,6 +8,7 @@ import * as m0006 from './0006-cause-counts'
 import * as m0007 from './0007-capture-job'
 import * as m0008 from './0008-attachment-uses'
 import * as m0009 from './0009-invitations-withdrawn'
+import * as m0010 from './0010-diagnosis-reasoning'
 import * as m0011 from './0011-rule-guards'
 
 export interface Migration {
@@ -27,5 +28,6 @@ export const MIGRATIONS: Migration[] = [
   { name: '0007-capture-job', ...m0007 },
   { name: '0008-attachment-uses', ...m0008 },
   { name: '0009-invitations-withdrawn', ...m0009 },
+  { name: '0010-diagnosis-reasoning', ...m0010 },
   { name: '0011-rule-guards', ...m0011 },
 ]

@@ -1,7 +1,9 @@
 import { DataTypes, Model, type CreationOptional, type InferAttributes, type InferCreationAttributes, type Sequelize } from 'sequelize'
-import { OUTCOMES, RECORD_STATUSES, type Outcome, type RecordStatus } from '../../../shared/types/records'
+import { OUTCOMES, RECORD_STATUSES, type CloseDraft, type Outcome, type RecordStatus } from '../../../shared/types/records'
+import type { StepVerdict } from '../../../shared/types/verdicts'
 
-export interface StoredStep { value: string, note: string, done: boolean }
+/** A step as a record keeps it: what was typed, and the verdict and time the server gave it. */
+export interface StoredStep { value: string, note: string, done: boolean, verdict?: StepVerdict | null, readAt?: string | null }
 export interface StoredPart { name: string, partNumber?: string, cost: number }
 
 const json = <T>(field: string, fallback: T) => ({
@@ -31,6 +33,10 @@ export class RepairRecord extends Model<InferAttributes<RepairRecord>, InferCrea
   declare technicianId: number
   declare steps: CreationOptional<Record<string, StoredStep>>
   declare notes: CreationOptional<string>
+  /** The step keys a flow took, in order (empty for a procedure that is not a flow). */
+  declare path: CreationOptional<string[]>
+  /** The close form as it is being filled in; null once closed. */
+  declare closeDraft: CreationOptional<CloseDraft | null>
   /** Procedure id of the confirmed cause (a symptom-only record can confirm any procedure's cause). */
   declare causeProcedureId: number | null
   declare causeKey: string | null
@@ -61,6 +67,8 @@ export class RepairRecord extends Model<InferAttributes<RepairRecord>, InferCrea
       technicianId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
       steps: { ...json<Record<string, StoredStep>>('steps', {}), defaultValue: {} },
       notes: { type: DataTypes.TEXT, allowNull: false, defaultValue: '' },
+      path: { ...json<string[]>('path', []), allowNull: true, defaultValue: [] },
+      closeDraft: { ...json<CloseDraft | null>('closeDraft', null), allowNull: true, defaultValue: null },
       causeProcedureId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: true },
       causeKey: { type: DataTypes.STRING(40), allowNull: true },
       outcome: { type: DataTypes.ENUM(...OUTCOMES), allowNull: true },

@@ -1,6 +1,7 @@
 import { QueryTypes } from 'sequelize'
 import type { DashboardDto, Outcome } from '../../../shared/types/records'
 import { DeviceType, Procedure, Revision, Symptom, useDb } from '../../db'
+import { reasoningFigures } from './reasoning'
 
 type Row = Record<string, string | number | null>
 
@@ -14,7 +15,7 @@ export async function dashboard(range: { from: Date, to: Date }, technicianId?: 
   const replacements = { from: range.from, to: range.to, tech: technicianId ?? 0 }
   const q = (sql: string) => db.query<Row>(sql, { type: QueryTypes.SELECT, replacements })
   const base = `FROM repair_records r WHERE r.started_at >= :from AND r.started_at < :to ${scope}`
-  const [weekly, symptoms, causes, outcomes, minutes, comebacks, costs] = await Promise.all([
+  const [weekly, symptoms, causes, outcomes, minutes, comebacks, costs, reasoning] = await Promise.all([
     q(`SELECT DATE_FORMAT(DATE_SUB(DATE(r.started_at), INTERVAL WEEKDAY(r.started_at) DAY), '%Y-%m-%d') AS week, COUNT(*) AS n ${base} GROUP BY week ORDER BY week`),
     q(`SELECT s.symptom AS slug, COUNT(*) AS n FROM record_symptoms s JOIN repair_records r ON r.id = s.record_id WHERE r.started_at >= :from AND r.started_at < :to ${scope} GROUP BY s.symptom ORDER BY n DESC LIMIT 10`),
     q(`SELECT r.device_type AS dt, r.cause_procedure_id AS pid, r.cause_key AS ck, COUNT(*) AS n ${base} AND r.status = 'closed' AND r.cause_key IS NOT NULL GROUP BY dt, pid, ck ORDER BY n DESC LIMIT 40`),
@@ -22,6 +23,7 @@ export async function dashboard(range: { from: Date, to: Date }, technicianId?: 
     q(`SELECT r.procedure_id AS pid, r.minutes AS m ${base} AND r.status = 'closed' AND r.minutes IS NOT NULL AND r.procedure_id IS NOT NULL ORDER BY pid, m`),
     q(`SELECT SUM(r.comeback) AS back, COUNT(*) AS n ${base} AND r.status = 'closed'`),
     q(`SELECT SUM(r.parts_cost_cents) AS repair, SUM(r.replacement_cost_cents) AS replace_, COUNT(*) AS n ${base} AND r.status = 'closed' AND r.outcome = 'repaired' AND r.replacement_cost_cents IS NOT NULL`),
+    reasoningFigures(),
   ])
   const procIds = [...new Set([...causes.map(c => Number(c.pid)), ...minutes.map(m => Number(m.pid))])]
   const [procs, types, symptomRows] = await Promise.all([
@@ -62,5 +64,6 @@ export async function dashboard(range: { from: Date, to: Date }, technicianId?: 
     comebacks: { count: Number(cb.back ?? 0), rate: Number(cb.n ?? 0) ? Number(cb.back ?? 0) / Number(cb.n) : null },
     costs: { repairTotal: Number(cost.repair ?? 0) / 100, replacementTotal: Number(cost.replace_ ?? 0) / 100, comparedRecords: Number(cost.n ?? 0) },
     keptOutOfWaste: repaired,
+    ...reasoning,
   }
 }

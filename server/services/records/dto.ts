@@ -1,9 +1,11 @@
 import type { MeasurementSpec } from '../../../shared/types/measurement'
 import type { RevisionContent } from '../../../shared/types/procedure'
 import type { ReadingResultDto, RecordDto } from '../../../shared/types/records'
+import { isPassingVerdict, verdictCauses } from '../../../shared/types/verdicts'
 import { evaluateReading } from '../../../shared/utils/readings'
 import type { RepairRecord } from '../../db'
 import { Attachment, DeviceType, Procedure, RecordAmendment, Revision, Symptom, User } from '../../db'
+import { recordReasoning } from '../diagnosis/record'
 import { candidateCauses, causeId } from '../evidence/causes'
 import { renderContent } from '../procedures/dto'
 import { toAttachmentDto } from '../uploads/attachments'
@@ -13,11 +15,12 @@ import { canAmendRecord, canEditRecord, findRecord } from './access'
 export const eur = (c: number | null) => (c === null ? null : c / 100)
 
 function evaluateStep(step: RevisionContent['steps'][number] | undefined, value: string): ReadingResultDto {
-  const empty = { value, verdict: null, pass: null, display: null, error: null, raises: [] }
+  const empty = { value, verdict: null, pass: null, display: null, error: null, raises: [], question: null, suggestion: null }
   if (!step?.measurement || !value.trim()) return empty
-  const r = evaluateReading(value, step.measurement as MeasurementSpec, step.failPointsTo)
+  const r = evaluateReading(value, step.measurement as MeasurementSpec, [], { ask: true })
   if (!r.ok) return { ...empty, error: r.error }
-  return { value, verdict: r.verdict, pass: r.pass, display: r.parsed.display, error: null, raises: r.raises }
+  if (r.verdict === null) return { ...empty, display: r.parsed.display, question: r.question, suggestion: r.suggestion }
+  return { value, verdict: r.verdict, pass: r.pass, display: r.parsed.display, error: null, raises: r.pass ? [] : verdictCauses(step, r.verdict), question: null, suggestion: null }
 }
 
 export async function toRecordDto(r: RepairRecord, user: User): Promise<RecordDto> {
@@ -36,9 +39,11 @@ export async function toRecordDto(r: RepairRecord, user: User): Promise<RecordDt
   const steps: RecordDto['steps'] = {}
   const raisedCount = new Map<string, number>()
   for (const [key, s] of Object.entries(r.steps)) {
-    const result = evaluateStep(content?.steps.find(st => st.key === key), s.value)
-    steps[key] = { ...s, result }
-    if (proc && result.pass === false) for (const c of result.raises) raisedCount.set(causeId(proc.slug, c), (raisedCount.get(causeId(proc.slug, c)) ?? 0) + 1)
+    const step = content?.steps.find(st => st.key === key)
+    const verdict = s.verdict ?? null
+    steps[key] = { value: s.value, note: s.note, done: s.done, verdict, readAt: s.readAt ?? null, result: evaluateStep(step, s.value) }
+    // Failing verdicts of checks as well as of readings raise the causes they name.
+    if (proc && step && verdict && !isPassingVerdict(step, verdict)) for (const c of verdictCauses(step, verdict)) raisedCount.set(causeId(proc.slug, c), (raisedCount.get(causeId(proc.slug, c)) ?? 0) + 1)
   }
   let confirmed: RecordDto['confirmedCause'] = null
   if (r.causeKey && r.causeProcedureId) {
@@ -75,6 +80,8 @@ export async function toRecordDto(r: RepairRecord, user: User): Promise<RecordDt
     candidates: candidates.map(c => ({ id: causeId(c.procedureSlug, c.causeKey), label: c.label, procedureSlug: c.procedureSlug })),
     guide: rev && content ? { content, rendered: renderContent(content), attachments: await attachmentsOfContent(content) } : null,
     can: { edit: canEditRecord(user, r), close: canEditRecord(user, r), amend: canAmendRecord(user, r) },
+    closeDraft: r.status === 'in_progress' ? r.closeDraft : null,
+    reasoning: proc && rev && content ? await recordReasoning(r, { procedureId: proc.id, slug: proc.slug, content }) : null,
   }
 }
 

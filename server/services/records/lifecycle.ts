@@ -1,21 +1,26 @@
 import type { Transaction } from 'sequelize'
-import type { Outcome } from '../../../shared/types/records'
+import type { CloseDraft, Outcome } from '../../../shared/types/records'
 import type { User } from '../../db'
 import { DeviceType, Procedure, RecordAmendment, RecordSymptom, RepairRecord, Revision, Symptom, inTransaction } from '../../db'
-import type { StoredPart, StoredStep } from '../../db/models/repair-record'
+import type { StoredPart } from '../../db/models/repair-record'
 import { recordAudit } from '../audit/audit-log'
 import { notifyEvidenceChanged } from '../change-log/notify'
 import { conflict, forbidden, invalid } from '../errors'
 import { adjustCauseCounts } from '../evidence/counts'
 import { candidateCauses, causeId } from '../evidence/causes'
+import { adjustLearnedCounts, contributionOf } from '../diagnosis/learned'
+import { guideOf } from '../diagnosis/record'
+import type { Guide } from '../diagnosis/reasoning'
 import { canAmendRecord, canEditRecord, findRecord } from './access'
 import { eur, toRecordDto } from './dto'
 import { assertPhotosLinkable } from './links'
+import { flowPath, judgeSteps, type SentStep } from './steps'
 
 // A repair record from start to close: started from a live procedure (its revision pinned) or
 // from device type and symptoms, saved as the technician goes (stale version → 409 with the
 // current record), closed with the confirmed cause, and after that changed only by amendments.
-// Closing and amending move the evidence counts in the same transaction.
+// Closing and amending move the evidence counts and the counts reasoning learns from in the same
+// transaction.
 
 const cents = (euros: number) => Math.round(euros * 100)
 
@@ -61,22 +66,47 @@ export async function startRecord(input: { procedureSlug?: string, deviceType?: 
   })
 }
 
-/** Saves a record in progress (as the technician goes); a stale version gets 409 with the current record. */
-export async function patchRecord(id: number, patch: { version: number, unit?: Partial<{ model: string, serial: string, jobRef: string }>, symptoms?: string[], steps?: Record<string, Partial<StoredStep>>, notes?: string, photoIds?: number[] }, actor: User) {
+interface RecordPatch {
+  version: number
+  unit?: Partial<{ model: string, serial: string, jobRef: string }>
+  symptoms?: string[]
+  /** Only the fields named change; a step's other fields stay as saved. */
+  steps?: Record<string, Partial<SentStep>>
+  notes?: string
+  photoIds?: number[]
+  closeDraft?: CloseDraft | null
+}
+
+/**
+ * Saves a record in progress (as the technician goes); a stale version gets 409 with the current
+ * record. Each reading sent is judged on the server (verdict, done once readable, timed); a step
+ * marked done whose reading cannot be read is refused with 422 naming `steps.<key>.done`.
+ */
+export async function patchRecord(id: number, patch: RecordPatch, actor: User) {
+  const current = await findRecord(id)
+  const guide = patch.steps ? await guideOf(current) : null
   const result = await inTransaction(async (transaction) => {
     const r = await findRecord(id, transaction)
     if (r.status !== 'in_progress') throw conflict('This record is closed; correct it with an amendment.', { status: r.status })
     if (!canEditRecord(actor, r)) throw forbidden('Only the record\'s technician or an editor can change it.')
     if (r.version !== patch.version) return { stale: true as const, r }
     if (patch.photoIds) await assertPhotosLinkable(r, patch.photoIds, actor, transaction)
+    let steps = r.steps
+    if (patch.steps) {
+      const judged = judgeSteps(guide?.content.steps ?? [], r.steps, patch.steps, new Date())
+      if (Object.keys(judged.fields).length) throw invalid(`A step cannot be marked done: ${Object.values(judged.fields).join('; ')}`, judged.fields)
+      steps = judged.steps
+    }
     await r.update({
       unitModel: patch.unit?.model ?? r.unitModel,
       unitSerial: patch.unit?.serial ?? r.unitSerial,
       jobRef: patch.unit?.jobRef ?? r.jobRef,
       symptoms: patch.symptoms ?? r.symptoms,
-      steps: patch.steps ? mergeSteps(r.steps, patch.steps) : r.steps,
+      steps,
+      path: guide ? flowPath(guide.content.steps, steps) : r.path,
       notes: patch.notes ?? r.notes,
       photoIds: patch.photoIds ?? r.photoIds,
+      closeDraft: patch.closeDraft !== undefined ? patch.closeDraft : r.closeDraft,
       version: r.version + 1,
     }, { transaction })
     if (patch.symptoms) await writeSymptoms(r.id, patch.symptoms, transaction)
@@ -88,13 +118,6 @@ export async function patchRecord(id: number, patch: { version: number, unit?: P
   return result.r
 }
 
-/** A save names some fields of some steps: those change, everything else stays as it was. */
-function mergeSteps(stored: Record<string, StoredStep>, patch: Record<string, Partial<StoredStep>>): Record<string, StoredStep> {
-  const merged = { ...stored }
-  for (const [key, entry] of Object.entries(patch)) merged[key] = { value: '', note: '', done: false, ...stored[key], ...entry }
-  return merged
-}
-
 async function resolveCause(record: RepairRecord, cause: string | null): Promise<{ causeProcedureId: number | null, causeKey: string | null }> {
   if (!cause) return { causeProcedureId: null, causeKey: null }
   const candidates = await candidateCauses({ deviceType: record.deviceType, symptoms: record.symptoms, procedureId: record.procedureId ?? undefined })
@@ -103,11 +126,18 @@ async function resolveCause(record: RepairRecord, cause: string | null): Promise
   return { causeProcedureId: found.procedureId, causeKey: found.causeKey }
 }
 
+/** Moves the counts reasoning learns from by one closed record of a guided procedure. */
+async function adjustLearning(r: RepairRecord, guide: Guide | null, delta: 1 | -1, transaction: Transaction) {
+  const contribution = guide && contributionOf(r, guide.content)
+  if (contribution) await adjustLearnedCounts(guide.procedureId, contribution, delta, transaction)
+}
+
 export async function closeRecord(id: number, body: { confirmedCause: string | null, outcome: Outcome, parts: StoredPart[], minutes: number, replacementCost: number | null, photoIds: number[], notes?: string }, actor: User) {
   const r = await findRecord(id)
   if (r.status !== 'in_progress') throw conflict('This record is already closed.', { status: r.status })
   if (!canEditRecord(actor, r)) throw forbidden('Only the record\'s technician or an editor can close it.')
   const cause = await resolveCause(r, body.confirmedCause)
+  const guide = await guideOf(r)
   return await inTransaction(async (transaction) => {
     const locked = await findRecord(id, transaction)
     if (locked.status !== 'in_progress') throw conflict('This record is already closed.')
@@ -123,9 +153,11 @@ export async function closeRecord(id: number, body: { confirmedCause: string | n
       photoIds: [...new Set([...locked.photoIds, ...body.photoIds])],
       notes: body.notes ?? locked.notes,
       closedAt: new Date(),
+      closeDraft: null,
       version: locked.version + 1,
     }, { transaction })
     await adjustCauseCounts(locked, 1, transaction)
+    await adjustLearning(locked, guide, 1, transaction)
     await notifyEvidenceChanged(transaction)
     await recordAudit({ actorId: actor.id, action: 'record.closed', entityType: 'record', entityId: id, after: { outcome: body.outcome, cause: body.confirmedCause } }, transaction)
     return locked
@@ -151,9 +183,11 @@ export async function amendRecord(id: number, body: { reason: string, changes: P
   }
   const changes: Record<string, { before: unknown, after: unknown }> = {}
   for (const k of AMENDABLE) if (c[k] !== undefined) changes[k] = { before: before[k], after: c[k] }
+  const guide = await guideOf(r)
   return await inTransaction(async (transaction) => {
     const locked = await findRecord(id, transaction)
     await adjustCauseCounts(locked, -1, transaction)
+    await adjustLearning(locked, guide, -1, transaction)
     await locked.update({
       ...cause,
       outcome,
@@ -167,6 +201,7 @@ export async function amendRecord(id: number, body: { reason: string, changes: P
       version: locked.version + 1,
     }, { transaction })
     await adjustCauseCounts(locked, 1, transaction)
+    await adjustLearning(locked, guide, 1, transaction)
     await RecordAmendment.create({ recordId: id, authorId: actor.id, reason: body.reason, changes }, { transaction })
     await notifyEvidenceChanged(transaction)
     await recordAudit({ actorId: actor.id, action: 'record.amended', entityType: 'record', entityId: id, before, after: changes }, transaction)
