@@ -2,6 +2,8 @@ import { diffArrays } from 'diff'
 import type { DraftContent, RevisionContent } from '../types/procedure'
 import type { FieldChange, ItemChange, TextDiffPart } from '../types/procedure-api'
 import { QUANTITY_LABELS } from '../types/quantities'
+import { ESCALATE, STEP_VERDICTS, verdictCondition } from '../types/verdicts'
+import type { VerdictEntry } from '../types/verdicts'
 
 type Content = RevisionContent | DraftContent
 type Measurement = Content['steps'][number]['measurement']
@@ -85,7 +87,7 @@ function textDiff(field: string, label: string, a: string, b: string): FieldChan
 
 const list = (xs: readonly (string | number)[] | undefined, sep = ', ') => (xs ?? []).join(sep)
 const named = (keys: readonly string[] | undefined, names: ReadonlyMap<string, string> | Readonly<Record<string, string>> | undefined) =>
-  (keys ?? []).map(k => (names instanceof Map ? names.get(k) : names?.[k]) ?? k)
+  (keys ?? []).map(k => (names instanceof Map ? names.get(k) : (names as Readonly<Record<string, string>> | undefined)?.[k]) ?? k)
 
 /** The expected reading as the author wrote it: `Diode test: 0.4 – 0.7 V`, `Resistance: 220 kΩ ± 20 %`. */
 export function measurementText(m: Measurement): string {
@@ -102,6 +104,40 @@ export function measurementText(m: Measurement): string {
 }
 
 const photos = (ids: readonly number[] | undefined) => (ids?.length ? `${ids.length} ${ids.length === 1 ? 'photo' : 'photos'}` : '')
+
+type Step = Content['steps'][number]
+
+/** What one verdict of a step says, in words: `points to Bridge diode shorted`, `step 4`, `confirms …`. */
+function verdictText(entry: Partial<VerdictEntry> | undefined, causes: ReadonlyMap<string, string>, steps: ReadonlyArray<Pick<Step, 'key' | 'title'>>): string {
+  if (!entry) return ''
+  const parts: string[] = []
+  if (entry.causes?.length) parts.push(`points to ${named(entry.causes, causes).join(' or ')}`)
+  if (entry.conclude === ESCALATE) parts.push('pass the job on')
+  else if (entry.conclude) parts.push(`confirms ${causes.get(entry.conclude) ?? entry.conclude}`)
+  if (entry.next) {
+    const i = steps.findIndex(s => s.key === entry.next)
+    parts.push(i < 0 ? `“${entry.next}”` : `step ${i + 1}`)
+  }
+  if (parts.length === 0 && entry.causes) parts.push('no cause')
+  return parts.join(', then ')
+}
+
+/**
+ * Per verdict, what changed in its meaning, as a sentence: `if it reads low: was → step 4, now →
+ * confirms Bridge diode shorted`. Step numbers are each revision's own.
+ */
+function verdictChanges(a: Step | undefined, b: Step | undefined, sides: { a: Content, b: Content }, causeNames: { a: ReadonlyMap<string, string>, b: ReadonlyMap<string, string> }): FieldChange[] {
+  const out: FieldChange[] = []
+  for (const verdict of STEP_VERDICTS) {
+    const before = verdictText(a?.verdicts?.[verdict], causeNames.a, sides.a.steps ?? [])
+    const after = verdictText(b?.verdicts?.[verdict], causeNames.b, sides.b.steps ?? [])
+    if (before === after) continue
+    const condition = verdictCondition(verdict)
+    const summary = `${condition}: ${before ? `was → ${before}` : 'nothing said before'}, ${after ? `now → ${after}` : 'now nothing said'}`
+    out.push({ field: `verdicts.${verdict}`, label: condition.charAt(0).toUpperCase() + condition.slice(1), parts: wordDiff(before, after), summary })
+  }
+  return out
+}
 
 type FieldsOf<T> = (x: T, side: 'a' | 'b') => Array<[field: string, label: string, text: string]>
 
@@ -153,10 +189,19 @@ export function compareContents(a: Content, b: Content, names: ComparisonNames =
   const causes = compareItems(a.causes ?? [], b.causes ?? [], c => c.key, c => c.name, c => [
     ['name', 'Name', c.name], ['detail', 'Detail', c.detail ?? ''], ['prior', 'How likely, before any records', String(c.prior)],
   ])
-  const steps = compareItems(a.steps ?? [], b.steps ?? [], s => s.key, s => s.title, (s, side) => [
+  const steps = compareItems(a.steps ?? [], b.steps ?? [], s => s.key, s => s.title, s => [
     ['title', 'Title', s.title], ['instruction', 'Instruction', s.instruction ?? ''], ['measurement', 'Expected reading', measurementText(s.measurement)],
-    ['failPointsTo', 'A failing reading points to', list(named(s.failPointsTo, causeNames[side]), '; ')], ['imageIds', 'Photos', photos(s.imageIds)],
+    ['minutes', 'Minutes it takes', s.minutes ? `about ${s.minutes} min` : ''], ['imageIds', 'Photos', photos(s.imageIds)],
   ])
+  // What each verdict means, said as sentences after the step's other changes.
+  const stepA = new Map((a.steps ?? []).map(s => [s.key, s]))
+  const stepB = new Map((b.steps ?? []).map(s => [s.key, s]))
+  for (const item of steps) {
+    const changes = verdictChanges(stepA.get(item.key), stepB.get(item.key), { a, b }, causeNames)
+    if (changes.length === 0) continue
+    item.fields.push(...changes)
+    if (item.kind === 'unchanged' || item.kind === 'moved') item.kind = 'changed'
+  }
   const parts = compareItems(a.parts ?? [], b.parts ?? [], p => p.name, p => p.name, p => [
     ['partNumber', 'Part number', p.partNumber ?? ''], ['substitutes', 'Substitutes', list(p.substitutes, '; ')],
   ])

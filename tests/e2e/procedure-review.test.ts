@@ -246,6 +246,15 @@ describe('writing, reviewing and publishing a procedure in Chromium', () => {
     await page.getByTestId(`queue-open-${secondRevisionId}`).click()
     await page.waitForURL(new RegExp(`/review/${secondRevisionId}$`), WAIT)
     await page.getByTestId('review-content').waitFor(WAIT)
+    // Nothing is live yet: the resubmission is compared with the revision that was sent back,
+    // whose comments show beside the changes.
+    expect(await page.getByTestId('review-first-revision').count()).toBe(0)
+    expect(await page.getByTestId('review-compared-with').textContent()).toMatch(/revision 1, which was sent back/)
+    expect(await page.getByTestId('review-sent-back').textContent()).toContain('reversed reading')
+    const changedStep = page.getByTestId(`item-change-steps-${measuredStepKey}`)
+    expect(await changedStep.getAttribute('data-kind')).toBe('changed')
+    expect((await changedStep.locator('ins').allTextContents()).join(' ')).toMatch(/revised/)
+    await screenshot(page, 'review-flow-6-resubmission')
     await page.getByTestId('decide-approve').click()
     await page.getByTestId('decision-form').waitFor()
     await screenshot(page, 'review-flow-6-approve')

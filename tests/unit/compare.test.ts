@@ -47,7 +47,7 @@ describe('compareContents', () => {
     changed.deviceType = 'pir-occupancy-switch'
     changed.symptoms = ['does-not-dim', 'flickers-one-half-cycle']
     changed.steps[0]!.measurement = { quantity: 'ac_voltage', unit: 'V', max: 120 }
-    changed.steps[0]!.failPointsTo = ['shorted-fet', 'open-pot']
+    changed.steps[0]!.verdicts = { low: { causes: ['shorted-fet', 'open-pot'] } }
     const cmp = compareContents(base, changed, {
       deviceTypes: { 'rotary-led-dimmer-trailing-edge': '2-wire rotary LED dimmer', 'pir-occupancy-switch': 'PIR occupancy switch' },
       symptoms: { 'does-not-dim': 'Does not dim', 'flickers-one-half-cycle': 'Flickers on one half-cycle' },
@@ -59,10 +59,27 @@ describe('compareContents', () => {
     const reading = step.fields.find(f => f.field === 'measurement')!
     expect(side(reading.parts, 'before')).toBe('Diode test: 0.4 – 0.7 V')
     expect(side(reading.parts, 'after')).toBe('AC voltage: ≤ 120 V')
-    const pointers = step.fields.find(f => f.field === 'failPointsTo')!
-    expect(side(pointers.parts, 'after')).toBe('Shorted switching MOSFET; Open control potentiometer')
+    const low = step.fields.find(f => f.field === 'verdicts.low')!
+    expect(side(low.parts, 'after')).toBe('points to Shorted switching MOSFET or Open control potentiometer')
     expect(side(cmp.fields.find(f => f.field === 'deviceType')!.parts, 'after')).toBe('PIR occupancy switch')
     expect(side(cmp.fields.find(f => f.field === 'symptoms')!.parts, 'after')).toBe('Does not dim; Flickers on one half-cycle')
+  })
+
+  it('says a changed branch in words, with each revision\'s step numbers', () => {
+    const before = structuredClone(base)
+    before.steps[0]!.verdicts = { low: { causes: ['shorted-fet'], next: 'pot' }, open: { causes: ['shorted-fet'] } }
+    const after = structuredClone(base)
+    after.steps[0]!.verdicts = { low: { conclude: 'shorted-fet' }, open: { causes: ['shorted-fet'] }, in_range: { next: 'pot' } }
+    after.steps[1]!.minutes = 4
+    const cmp = compareContents(before, after)
+    const step = cmp.steps.find(s => s.key === 'fet-diode')!
+    expect(step.kind).toBe('changed')
+    expect(step.fields.map(f => f.summary).filter(Boolean)).toEqual([
+      'if it reads in range: nothing said before, now → step 2',
+      'if it reads low: was → points to Shorted switching MOSFET, then step 2, now → confirms Shorted switching MOSFET',
+    ])
+    const pot = cmp.steps.find(s => s.key === 'pot')!
+    expect(side(pot.fields.find(f => f.field === 'minutes')!.parts, 'after')).toBe('about 4 min')
   })
 
   it.each([
