@@ -10,6 +10,8 @@ export type DagreModule = typeof import('@dagrejs/dagre')
 export interface Point { x: number, y: number }
 
 export interface PlacedNode extends FlowGraphNode {
+  /** The graph node this box draws: an end box reached from several steps is drawn once per step, beside each. */
+  baseId: string
   /** Top-left corner and size, in the diagram's units (CSS pixels at scale 1). */
   x: number
   y: number
@@ -22,6 +24,8 @@ export interface PlacedNode extends FlowGraphNode {
 }
 
 export interface PlacedEdge extends FlowGraphEdge {
+  /** The graph node the edge ends at (`to` names the box it is drawn to). */
+  baseTo: string
   points: Point[]
   /** Centre of the verdict label. */
   labelX: number
@@ -47,8 +51,10 @@ export interface FlowLayout {
 
 /** Sizes of the drawing, in CSS pixels at scale 1. */
 export const FLOW_SIZES = {
-  stepWidth: 164,
-  endWidth: 136,
+  stepWidth: 166,
+  endWidth: 128,
+  /** The narrowest end box ("Escalate"). */
+  minEndWidth: 76,
   titleFont: 12.5,
   lineHeight: 15,
   labelFont: 11,
@@ -61,21 +67,27 @@ export const FLOW_SIZES = {
   margin: 6,
 } as const
 
-// Average advance of characters in the UI sans, in ems (measured once from system-ui at 12 px;
-// close enough to break lines where the browser would, without a DOM on the server).
-function charEm(ch: string): number {
-  if (/[ilj.,;:!|'’`()[\]]/.test(ch)) return 0.28
-  if (/[mwMW@]/.test(ch)) return 0.86
-  if (/[A-Z]/.test(ch)) return 0.66
-  if (/\d/.test(ch)) return 0.56
-  if (ch === ' ') return 0.27
-  return 0.52
+// Advance of characters in the UI sans, in ems, regular and bold: measured in Chromium on the
+// widest common system face (DejaVu Sans), so boxes hold their words in any narrower one too.
+const EM = {
+  regular: { narrow: 0.34, wide: 0.93, upper: 0.66, digit: 0.64, space: 0.32, other: 0.57 },
+  bold: { narrow: 0.4, wide: 1.02, upper: 0.74, digit: 0.7, space: 0.35, other: 0.64 },
+} as const
+
+function charEm(ch: string, bold: boolean): number {
+  const em = bold ? EM.bold : EM.regular
+  if (/[ilj.,;:!|'’`()[\]]/.test(ch)) return em.narrow
+  if (/[mwMW@]/.test(ch)) return em.wide
+  if (/[A-Z]/.test(ch)) return em.upper
+  if (/\d/.test(ch)) return em.digit
+  if (ch === ' ') return em.space
+  return em.other
 }
 
 /** The width a text takes at a font size, estimated. */
-export function textWidth(text: string, fontPx: number): number {
+export function textWidth(text: string, fontPx: number, bold = false): number {
   let em = 0
-  for (const ch of text) em += charEm(ch)
+  for (const ch of text) em += charEm(ch, bold)
   return em * fontPx
 }
 
@@ -86,12 +98,12 @@ export function textWidth(text: string, fontPx: number): number {
  * @example
  * wrapText('Diode-test Q1 source to drain', 100, 12.5) // ['Diode-test Q1', 'source to drain']
  */
-export function wrapText(text: string, maxPx: number, fontPx: number, maxLines = Infinity): string[] {
+export function wrapText(text: string, maxPx: number, fontPx: number, maxLines = Infinity, bold = false): string[] {
   const lines: string[] = []
   let line = ''
   for (const word of text.trim().split(/\s+/).filter(Boolean)) {
     const candidate = line ? `${line} ${word}` : word
-    if (!line || textWidth(candidate, fontPx) <= maxPx) {
+    if (!line || textWidth(candidate, fontPx, bold) <= maxPx) {
       line = candidate
       continue
     }
@@ -102,22 +114,26 @@ export function wrapText(text: string, maxPx: number, fontPx: number, maxLines =
   if (lines.length <= maxLines) return lines
   const kept = lines.slice(0, maxLines)
   let last = `${kept[maxLines - 1]!}…`
-  while (textWidth(last, fontPx) > maxPx && last.length > 2) last = `${last.slice(0, -2)}…`
+  while (textWidth(last, fontPx, bold) > maxPx && last.length > 2) last = `${last.slice(0, -2)}…`
   kept[maxLines - 1] = last
   return kept
 }
 
-function sized(node: FlowGraphNode): Omit<PlacedNode, 'x' | 'y'> {
+function sized(node: FlowGraphNode, id: string): Omit<PlacedNode, 'x' | 'y'> {
   const s = FLOW_SIZES
   const isStep = node.kind === 'step' && node.number !== undefined
-  const width = isStep ? s.stepWidth : s.endWidth
+  // Step titles are set in the regular weight, the ends in bold.
+  const bold = !isStep
+  const inner0 = (isStep ? s.stepWidth : s.endWidth) - 2 * s.padX - (isStep ? s.numberRoom : 0)
+  const lines = wrapText(node.label, inner0, s.titleFont, s.maxLines, bold)
+  // End boxes take the width their words need; steps all take the same.
+  const width = isStep ? s.stepWidth : Math.max(s.minEndWidth, Math.ceil(Math.max(...lines.map(l => textWidth(l, s.titleFont, bold)), node.kind === 'conclusion' ? textWidth('CONFIRMS', s.labelFont - 1, true) : 0) + 2 * s.padX + 2))
   const inner = width - 2 * s.padX - (isStep ? s.numberRoom : 0)
-  const lines = wrapText(node.label, inner, s.titleFont, s.maxLines)
   const expectedLine = node.expected ? wrapText(node.expected, inner, s.labelFont, 1)[0]! : null
   // A conclusion carries a small "Confirms" line over its cause.
   const extra = (expectedLine ? s.lineHeight : 0) + (node.kind === 'conclusion' ? s.lineHeight - 2 : 0)
   const height = Math.max(isStep ? 30 : 26, 2 * s.padY + lines.length * s.lineHeight + extra)
-  return { ...node, width, height, lines, expectedLine }
+  return { ...node, id, baseId: node.id, width, height, lines, expectedLine }
 }
 
 /**
@@ -133,27 +149,64 @@ export function layoutFlow(dagre: DagreModule, graph: FlowGraph): FlowLayout {
   const g = new dagre.graphlib.Graph({ multigraph: false })
   g.setGraph({ rankdir: 'TB', nodesep: 16, ranksep: 14, edgesep: 8, marginx: s.margin, marginy: s.margin })
   g.setDefaultEdgeLabel(() => ({}))
-  const nodes = new Map(graph.nodes.map(n => [n.id, sized(n)]))
-  for (const n of nodes.values()) g.setNode(n.id, { width: n.width, height: n.height })
+  // An end (a conclusion, "escalate", the end) reached from several steps gets a box beside each
+  // of them: one shared box would pull long edges across the drawing and widen it.
+  const byId = new Map(graph.nodes.map(n => [n.id, n]))
+  const inbound = new Map<string, number>()
+  for (const e of graph.edges) inbound.set(e.to, (inbound.get(e.to) ?? 0) + 1)
+  const isEnd = (id: string) => byId.get(id)?.kind !== 'step'
+  const drawnTo = (e: FlowGraphEdge) => (isEnd(e.to) && inbound.get(e.to)! > 1 ? `${e.to}~${e.from}` : e.to)
+  const boxes = new Map<string, Omit<PlacedNode, 'x' | 'y'>>()
+  for (const n of graph.nodes) if (!isEnd(n.id) || inbound.get(n.id) === 1 || !inbound.has(n.id)) boxes.set(n.id, sized(n, n.id))
+  for (const e of graph.edges) if (!boxes.has(drawnTo(e))) boxes.set(drawnTo(e), sized(byId.get(e.to)!, drawnTo(e)))
+  for (const n of boxes.values()) g.setNode(n.id, { width: n.width, height: n.height })
   for (const e of graph.edges) {
-    const labelWidth = textWidth(e.label, s.labelFont) + 12
-    g.setEdge(e.from, e.to, { width: labelWidth, height: s.labelHeight, labelpos: 'c', minlen: 1, weight: e.implicit ? 2 : 1 })
+    const labelWidth = textWidth(e.label, s.labelFont, true) + 12
+    // Step-to-step edges weigh more, so the path through the steps is drawn straight.
+    g.setEdge(e.from, drawnTo(e), { width: labelWidth, height: s.labelHeight, labelpos: 'c', minlen: 1, weight: isEnd(e.to) ? 1 : 4 })
   }
-  dagre.layout(g)
-  const placed: PlacedNode[] = graph.nodes.map((n) => {
-    const box = nodes.get(n.id)!
-    const at = g.node(n.id) as { x: number, y: number }
+  dagre.layout(g, spineHints(graph, drawnTo, isEnd))
+  const placed: PlacedNode[] = [...boxes.values()].map((box) => {
+    const at = g.node(box.id) as { x: number, y: number }
     return { ...box, x: round(at.x - box.width / 2), y: round(at.y - box.height / 2) }
   })
   const edges: PlacedEdge[] = graph.edges.map((e) => {
-    const at = g.edge(e.from, e.to) as { points: Point[], x: number, y: number, width: number }
-    return { ...e, points: at.points.map(p => ({ x: round(p.x), y: round(p.y) })), labelX: round(at.x), labelY: round(at.y), labelWidth: round(at.width) }
+    const to = drawnTo(e)
+    const at = g.edge(e.from, to) as { points: Point[], x: number, y: number, width: number }
+    return { ...e, to, baseTo: e.to, points: at.points.map(p => ({ x: round(p.x), y: round(p.y) })), labelX: round(at.x), labelY: round(at.y), labelWidth: round(at.width) }
   })
   const size = g.graph() as { width: number, height: number }
   return { width: Math.ceil(size.width), height: Math.ceil(size.height), nodes: placed, edges }
 }
 
 const round = (x: number) => Math.round(x * 10) / 10
+
+/**
+ * Keeps the main line of steps straight down the middle (dagre's `corePath`) and puts the end
+ * boxes hanging off it on alternate sides of the next step (`constraints`), so a flow that is a
+ * line of checks with conclusions beside it stays about two boxes wide.
+ */
+function spineHints(graph: FlowGraph, drawnTo: (e: FlowGraphEdge) => string, isEnd: (id: string) => boolean) {
+  const steps = graph.nodes.filter(n => n.kind === 'step' && n.number !== undefined).sort((a, b) => a.number! - b.number!)
+  const order = new Map(steps.map((n, i) => [n.id, i]))
+  const spine: string[] = []
+  for (let at: string | undefined = graph.start ?? undefined; at && !spine.includes(at);) {
+    spine.push(at)
+    const onward = graph.edges.filter(e => e.from === at && !isEnd(e.to) && order.has(e.to))
+    // The main line goes on to the nearest following step.
+    onward.sort((a, b) => order.get(a.to)! - order.get(b.to)!)
+    at = onward.find(e => order.get(e.to)! > order.get(at!)!)?.to
+  }
+  const constraints: Array<{ left: string, right: string }> = []
+  spine.forEach((id, i) => {
+    const next = spine[i + 1]
+    if (!next) return
+    graph.edges.filter(e => e.from === id && isEnd(e.to)).forEach((e, j) => {
+      constraints.push(j % 2 === 0 ? { left: drawnTo(e), right: next } : { left: next, right: drawnTo(e) })
+    })
+  })
+  return { corePath: spine, constraints }
+}
 
 /**
  * A short, stable name for a flow graph, so one layout is computed once per graph and shared by

@@ -23,6 +23,8 @@ import type { RecordDto } from '#shared/types/records'
 // The step to suggest is the one with the most probability found per minute (Kadane & Simon 1977).
 
 const stepCount = (r: RecordDto) => r.guide!.content.steps.length
+/** Text as read: numbers are kept with their units by no-break spaces. */
+const t = (w: { text: () => string }) => w.text().replace(/\u00A0/g, ' ')
 
 describe('reasoning at the bench', () => {
   let bench: ReturnType<typeof useBenchRecordStore>
@@ -36,7 +38,7 @@ describe('reasoning at the bench', () => {
   describe('the probabilities', () => {
     it('shows one number per cause, most probable first, and what the last reading changed', async () => {
       const panel = await mountSuspended(LikelyCauses)
-      const shown = () => panel.findAll('[data-rank]').map(li => [li.attributes('data-testid'), li.get('[data-testid^="likely-percent-"]').text()])
+      const shown = () => panel.findAll('[data-rank]').map(li => [li.attributes('data-testid'), t(li.get('[data-testid^="likely-percent-"]'))])
       expect(shown()).toEqual([['likely-shorted-fet', '54 %'], ['likely-open-pot', '27 %'], ['likely-_unlisted', '10 %'], ['likely-dry-cap', '9 %']])
       expect(panel.find('[data-testid="likely-change"]').exists()).toBe(false)
 
@@ -45,11 +47,11 @@ describe('reasoning at the bench', () => {
       expect(shown()).toEqual([['likely-shorted-fet', '78 %'], ['likely-open-pot', '13 %'], ['likely-_unlisted', '5 %'], ['likely-dry-cap', '4 %']])
       const probabilities = panel.findAll('[data-rank]').map(li => Number(li.attributes('data-probability')))
       expect(probabilities).toEqual([...probabilities].sort((a, b) => b - a))
-      expect(panel.get('[data-testid="likely-change"]').text()).toMatch(/After step 1 \(20\smV, low\)/)
-      expect(panel.get('[data-testid="likely-change-_unlisted"]').text()).toBe('A cause not listed here 10 % → 5 %')
-      expect(panel.get('[data-testid="likely-change-shorted-fet"]').text()).toBe('Shorted switching MOSFET 54 % → 78 %')
-      expect(panel.get('[data-testid="likely-change-open-pot"]').text()).toBe('Open control potentiometer 27 % → 13 %')
-      expect(panel.get('[data-testid="likely-raised-shorted-fet"]').text()).toMatch(/step 1 read 20\s*mV \(low\)/)
+      expect(t(panel.get('[data-testid="likely-change"]'))).toMatch(/After step 1 \(20\smV, low\)/)
+      expect(t(panel.get('[data-testid="likely-change-_unlisted"]'))).toBe('A cause not listed here 10 % → 5 %')
+      expect(t(panel.get('[data-testid="likely-change-shorted-fet"]'))).toBe('Shorted switching MOSFET 54 % → 78 %')
+      expect(t(panel.get('[data-testid="likely-change-open-pot"]'))).toBe('Open control potentiometer 27 % → 13 %')
+      expect(t(panel.get('[data-testid="likely-raised-shorted-fet"]'))).toMatch(/step 1 read 20\s*mV \(low\)/)
     })
 
     it('puts the same number beside each cause in the close form, in the same order', async () => {
@@ -57,19 +59,19 @@ describe('reasoning at the bench', () => {
       const form = await mountSuspended(CloseForm)
       const causes = form.findAll('[data-testid^="close-cause-dimmer-stays-dark:"]')
       expect(causes.map(c => c.attributes('data-testid'))).toEqual(['close-cause-dimmer-stays-dark:shorted-fet', 'close-cause-dimmer-stays-dark:open-pot', 'close-cause-dimmer-stays-dark:dry-cap'])
-      expect(form.get('[data-testid="close-cause-probability-dimmer-stays-dark:shorted-fet"]').text()).toBe('78 % now')
+      expect(t(form.get('[data-testid="close-cause-probability-dimmer-stays-dark:shorted-fet"]'))).toBe('78 % now')
     })
   })
 
   describe('the next step', () => {
     it('suggests the step most likely to find the fault for its minutes, and moves on after a reading', async () => {
       const next = await mountSuspended(NextStep)
-      expect(next.get('[data-testid="next-step-link"]').text()).toBe('Step 1, Diode-test the MOSFET body diode')
-      expect(next.get('[data-testid="next-step-figures"]').text()).toBe('about 5 min · 54 % it finds the fault')
+      expect(t(next.get('[data-testid="next-step-link"]'))).toBe('Step 1, Diode-test the MOSFET body diode')
+      expect(t(next.get('[data-testid="next-step-figures"]'))).toBe('about 5 min · 54 % it finds the fault')
       bench.setReading('fet-diode', '0.58')
       await nextTick()
-      expect(next.get('[data-testid="next-step-link"]').text()).toBe('Step 2, Measure the potentiometer track')
-      expect(next.get('[data-testid="next-step-figures"]').text()).toBe('about 5 min · 50 % it finds the fault')
+      expect(t(next.get('[data-testid="next-step-link"]'))).toBe('Step 2, Measure the potentiometer track')
+      expect(t(next.get('[data-testid="next-step-figures"]'))).toBe('about 5 min · 50 % it finds the fault')
     })
 
     it('takes the author\'s minutes into account', () => {
@@ -86,7 +88,7 @@ describe('reasoning at the bench', () => {
       const step = mockRecord().guide!.content.steps[0]!
       const input = await mountSuspended(ReadingInput, { props: { step, modelValue: '580MV' } })
       expect(input.get('[data-testid="verdict-fet-diode"]').attributes('data-state')).toBe('questioned')
-      expect(input.get('[data-testid="reading-question-fet-diode"]').text()).toContain('Did you mean 580 mV?')
+      expect(t(input.get('[data-testid="reading-question-fet-diode"]'))).toContain('Did you mean 580 mV?')
       expect(input.find('[data-testid="verdict-fet-diode"] [data-verdict]').exists()).toBe(false)
       await input.get('[data-testid="reading-accept-fet-diode"]').trigger('click')
       expect(input.emitted('update:modelValue')).toEqual([['580 mV']])
@@ -113,7 +115,7 @@ describe('reasoning at the bench', () => {
       expect(bench.work.steps['fet-diode']!.done).toBe(false)
       const card = await mountSuspended(GuidedStep, { props: { step: mockRecord().guide!.content.steps[0]!, index: 0, standing: null } })
       expect(card.get('[data-testid="step-done-fet-diode"]').attributes('disabled')).toBeDefined()
-      expect(card.get('[data-testid="step-done-hint-fet-diode"]').text()).toMatch(/cannot be read/)
+      expect(t(card.get('[data-testid="step-done-hint-fet-diode"]'))).toMatch(/cannot be read/)
     })
 
     it('a step with nothing typed is marked by hand', () => {
@@ -177,15 +179,15 @@ describe('reasoning at the bench', () => {
       const view = await mountSuspended(GuidedSteps)
       bench.setReading('fet-diode', '0.02')
       await nextTick()
-      expect(view.get('[data-testid="reading-branch-fet-diode"]').text()).toContain('This confirms Shorted switching MOSFET')
-      expect(view.get('[data-testid="flow-conclusion-cause"]').text()).toContain('Shorted switching MOSFET')
-      expect(view.get('[data-testid="flow-conclusion-cause"]').text()).toContain('78 % on the readings')
+      expect(t(view.get('[data-testid="reading-branch-fet-diode"]'))).toContain('This confirms Shorted switching MOSFET')
+      expect(t(view.get('[data-testid="flow-conclusion-cause"]'))).toContain('Shorted switching MOSFET')
+      expect(t(view.get('[data-testid="flow-conclusion-cause"]'))).toContain('78 % on the readings')
       expect(view.find('[data-testid="flow-conclusion-warning"]').exists()).toBe(false)
       // The steps the path skipped are folded, and still open.
       expect(view.find('[data-testid="step-skipped-pot"]').exists()).toBe(true)
       await view.get('[data-testid="step-open-pot"]').trigger('click')
       expect(view.find('[data-testid="step-skipped-pot"]').exists()).toBe(false)
-      expect(view.get('[data-testid="step-tag-pot"]').text()).toBe('Skipped by the flow')
+      expect(t(view.get('[data-testid="step-tag-pot"]'))).toBe('Skipped by the flow')
 
       await view.get('[data-testid="flow-conclusion-accept"]').trigger('click')
       expect(bench.work.close.cause).toBe('dimmer-stays-dark:shorted-fet')
@@ -209,8 +211,8 @@ describe('reasoning at the bench', () => {
       bench.setReading('pot', '470k')
       bench.setReading('look', 'fail')
       const next = await mountSuspended(NextStep)
-      expect(next.get('[data-testid="flow-conclusion-cause"]').text()).toContain('Dried-out supply capacitor')
-      expect(next.get('[data-testid="flow-conclusion-warning"]').text()).toMatch(/The flow concludes “Dried-out supply capacitor”, but the readings and records give it \d %/)
+      expect(t(next.get('[data-testid="flow-conclusion-cause"]'))).toContain('Dried-out supply capacitor')
+      expect(t(next.get('[data-testid="flow-conclusion-warning"]'))).toMatch(/The flow concludes “Dried-out supply capacitor”, but the readings and records give it \d %/)
     })
   })
 })
