@@ -107,34 +107,54 @@ const photos = (ids: readonly number[] | undefined) => (ids?.length ? `${ids.len
 
 type Step = Content['steps'][number]
 
-/** What one verdict of a step says, in words: `points to Bridge diode shorted`, `step 4`, `confirms …`. */
+/** Where one verdict of a step leads, in words: `step 4`, `confirms Bridge diode shorted`, `pass the job on`, or ''. */
+function targetText(entry: Partial<VerdictEntry> | undefined, causes: ReadonlyMap<string, string>, steps: ReadonlyArray<Pick<Step, 'key' | 'title'>>): string {
+  if (entry?.conclude === ESCALATE) return 'pass the job on'
+  if (entry?.conclude) return `confirms ${causes.get(entry.conclude) ?? entry.conclude}`
+  if (entry?.next) {
+    const i = steps.findIndex(s => s.key === entry.next)
+    return i < 0 ? `“${entry.next}”` : `step ${i + 1}`
+  }
+  return ''
+}
+
+/** What one verdict of a step says, in words, for the side-by-side view: `points to X or Y, then step 4`. */
 function verdictText(entry: Partial<VerdictEntry> | undefined, causes: ReadonlyMap<string, string>, steps: ReadonlyArray<Pick<Step, 'key' | 'title'>>): string {
   if (!entry) return ''
   const parts: string[] = []
   if (entry.causes?.length) parts.push(`points to ${named(entry.causes, causes).join(' or ')}`)
-  if (entry.conclude === ESCALATE) parts.push('pass the job on')
-  else if (entry.conclude) parts.push(`confirms ${causes.get(entry.conclude) ?? entry.conclude}`)
-  if (entry.next) {
-    const i = steps.findIndex(s => s.key === entry.next)
-    parts.push(i < 0 ? `“${entry.next}”` : `step ${i + 1}`)
-  }
-  if (parts.length === 0 && entry.causes) parts.push('no cause')
+  const target = targetText(entry, causes, steps)
+  if (target) parts.push(target)
   return parts.join(', then ')
 }
 
+const NEXT_IN_ORDER = 'on to the following step'
+
 /**
  * Per verdict, what changed in its meaning, as a sentence: `if it reads low: was → step 4, now →
- * confirms Bridge diode shorted`. Step numbers are each revision's own.
+ * confirms Bridge diode shorted`, `if it reads high: now also points to BR1 diode shorted`. Step
+ * numbers are each revision's own.
  */
 function verdictChanges(a: Step | undefined, b: Step | undefined, sides: { a: Content, b: Content }, causeNames: { a: ReadonlyMap<string, string>, b: ReadonlyMap<string, string> }): FieldChange[] {
   const out: FieldChange[] = []
   for (const verdict of STEP_VERDICTS) {
-    const before = verdictText(a?.verdicts?.[verdict], causeNames.a, sides.a.steps ?? [])
-    const after = verdictText(b?.verdicts?.[verdict], causeNames.b, sides.b.steps ?? [])
+    const [ea, eb] = [a?.verdicts?.[verdict], b?.verdicts?.[verdict]]
+    const before = verdictText(ea, causeNames.a, sides.a.steps ?? [])
+    const after = verdictText(eb, causeNames.b, sides.b.steps ?? [])
     if (before === after) continue
+    const said: string[] = []
+    const [ta, tb] = [targetText(ea, causeNames.a, sides.a.steps ?? []), targetText(eb, causeNames.b, sides.b.steps ?? [])]
+    if (ta !== tb) said.push(`was → ${ta || NEXT_IN_ORDER}, now → ${tb || NEXT_IN_ORDER}`)
+    // A confirmed cause counts among the causes pointed to: moving a cause into a conclusion is not a removal.
+    const pointed = (e: Partial<VerdictEntry> | undefined, names: ReadonlyMap<string, string>) =>
+      named([...(e?.causes ?? []), ...(e?.conclude && e.conclude !== ESCALATE ? [e.conclude] : [])], names)
+    const [ca, cb] = [pointed(ea, causeNames.a), pointed(eb, causeNames.b)]
+    const added = cb.filter(c => !ca.includes(c))
+    const removed = ca.filter(c => !cb.includes(c))
+    if (added.length) said.push(`now ${ca.length ? 'also ' : ''}points to ${added.join(' or ')}`)
+    if (removed.length) said.push(`no longer points to ${removed.join(' or ')}`)
     const condition = verdictCondition(verdict)
-    const summary = `${condition}: ${before ? `was → ${before}` : 'nothing said before'}, ${after ? `now → ${after}` : 'now nothing said'}`
-    out.push({ field: `verdicts.${verdict}`, label: condition.charAt(0).toUpperCase() + condition.slice(1), parts: wordDiff(before, after), summary })
+    out.push({ field: `verdicts.${verdict}`, label: condition.charAt(0).toUpperCase() + condition.slice(1), parts: wordDiff(before, after), summary: `${condition}: ${said.join('; ')}` })
   }
   return out
 }

@@ -75,11 +75,19 @@ describe('compareContents', () => {
     const step = cmp.steps.find(s => s.key === 'fet-diode')!
     expect(step.kind).toBe('changed')
     expect(step.fields.map(f => f.summary).filter(Boolean)).toEqual([
-      'if it reads in range: nothing said before, now → step 2',
-      'if it reads low: was → points to Shorted switching MOSFET, then step 2, now → confirms Shorted switching MOSFET',
+      'if it reads in range: was → on to the following step, now → step 2',
+      'if it reads low: was → step 2, now → confirms Shorted switching MOSFET',
     ])
     const pot = cmp.steps.find(s => s.key === 'pot')!
     expect(side(pot.fields.find(f => f.field === 'minutes')!.parts, 'after')).toBe('about 4 min')
+  })
+
+  it('says a cause added to a verdict as such', () => {
+    const before = structuredClone(base)
+    const after = structuredClone(base)
+    after.steps[0]!.verdicts = { ...after.steps[0]!.verdicts, high: { causes: ['shorted-fet', 'open-pot'] } }
+    const step = compareContents(before, after).steps.find(s => s.key === 'fet-diode')!
+    expect(step.fields.map(f => f.summary)).toEqual(['if it reads high: now also points to Open control potentiometer'])
   })
 
   it.each([
