@@ -33,34 +33,40 @@ const SPACE = /^\s+$/
 export function wordDiff(a: string, b: string): TextDiffPart[] {
   const changes = diffArrays(a.match(TOKENS) ?? [], b.match(TOKENS) ?? [])
   const out: TextDiffPart[] = []
-  let removed = ''
-  let added = ''
+  // A run of changes with the spaces between them, gathered before it is written out.
+  let block: Array<{ kind: 'removed' | 'added' | 'space', text: string }> = []
   const flush = () => {
-    // Spaces both sides share at the edges of a change are not part of it.
-    const lead = removed && added ? sharedSpace(removed, added, 'start') : ''
-    const tail = removed && added ? sharedSpace(removed.slice(lead.length), added.slice(lead.length), 'end') : ''
-    if (lead) out.push({ value: lead })
-    if (removed) out.push({ value: removed.slice(lead.length, removed.length - tail.length), removed: true })
-    if (added) out.push({ value: added.slice(lead.length, added.length - tail.length), added: true })
-    if (tail) out.push({ value: tail })
-    removed = ''
-    added = ''
+    const has = (kind: 'removed' | 'added') => block.some(x => x.kind === kind)
+    if (has('removed') && has('added')) {
+      // One struck-through phrase and one underlined phrase; the spaces between belong to both.
+      const removed = block.filter(x => x.kind !== 'added').map(x => x.text).join('')
+      const added = block.filter(x => x.kind !== 'removed').map(x => x.text).join('')
+      // Spaces both sides share at the edges of a change are not part of it.
+      const lead = sharedSpace(removed, added, 'start')
+      const tail = sharedSpace(removed.slice(lead.length), added.slice(lead.length), 'end')
+      if (lead) out.push({ value: lead })
+      out.push({ value: removed.slice(lead.length, removed.length - tail.length), removed: true })
+      out.push({ value: added.slice(lead.length, added.length - tail.length), added: true })
+      if (tail) out.push({ value: tail })
+    }
+    else {
+      // Only words put in (or only taken out): the spaces between them stay plain text.
+      for (const x of block) out.push(x.kind === 'space' ? { value: x.text } : { value: x.text, [x.kind]: true })
+    }
+    block = []
   }
   changes.forEach((change, i) => {
     const text = change.value.join('')
-    if (change.removed) removed += text
-    else if (change.added) added += text
-    else if (SPACE.test(text) && (removed || added) && i + 1 < changes.length) {
-      removed += text
-      added += text
-    }
+    if (change.removed) block.push({ kind: 'removed', text })
+    else if (change.added) block.push({ kind: 'added', text })
+    else if (SPACE.test(text) && block.length && i + 1 < changes.length) block.push({ kind: 'space', text })
     else {
       flush()
       out.push({ value: text })
     }
   })
   flush()
-  // Two plain parts in a row (a space that was held for a change that did not follow) read as one.
+  // Two plain parts in a row read as one.
   return out.reduce<TextDiffPart[]>((parts, part) => {
     const last = parts[parts.length - 1]
     if (last && !last.added && !last.removed && !part.added && !part.removed) last.value += part.value

@@ -18,6 +18,7 @@ describe('wordDiff', () => {
     ['a removed phrase and an added one stay apart', 'The lamp stays at full and never dims.', 'The lamp stays on and never dims.', 'The lamp stays [-at full-]{+on+} and never dims.'],
     ['words added at the end', 'The knob does nothing', 'The knob does nothing at all', 'The knob does nothing{+ at all+}'],
     ['a space taken out before a full stop', 'Q1 is shorted .', 'Q1 is shorted.', 'Q1 is shorted[- -].'],
+    ['words put in around a kept space leave the space unmarked', 'passed in full and the light', 'passed in full, the other is still cut, and the light', 'passed in full{+,+} {+the other is still cut, +}and the light'],
   ])('%s', (_label, a, b, expected) => {
     const parts = wordDiff(a, b)
     expect(marked(parts)).toBe(expected)
