@@ -48,7 +48,7 @@ describe('guided diagnosis at the bench, in Chromium', () => {
   it('types readings, sees verdicts, closes with a cause and a photo, and the evidence on the procedure page follows', async () => {
     const { page } = browser
     await open(page, `/procedures/${slug}`)
-    await expect.poll(() => page.getByTestId('cause-evidence-shorted-fet').textContent(), WAIT).not.toMatch(/confirmed in 1 of/)
+    await expect.poll(() => page.getByTestId('cause-evidence-shorted-fet').textContent(), WAIT).not.toMatch(/found in 1 of/)
     await page.getByTestId('start-diagnosis').click()
     await page.waitForURL(url => url.pathname === '/records/new', WAIT)
     await waitForHydration(page)
@@ -105,8 +105,8 @@ describe('guided diagnosis at the bench, in Chromium', () => {
 
     // The closed record counts as evidence on the procedure page.
     await open(page, `/procedures/${slug}`)
-    await expect.poll(() => page.getByTestId('cause-evidence-shorted-fet').textContent(), WAIT).toMatch(/confirmed in 1 of 1 record\s*$/)
-    expect(await page.getByTestId('cause-evidence-open-pot').textContent()).toMatch(/confirmed in 0 of 1 record\s*$/)
+    await expect.poll(() => page.getByTestId('cause-evidence-shorted-fet').textContent(), WAIT).toMatch(/found in 1 of 1 closed job\s*$/)
+    expect(await page.getByTestId('cause-evidence-open-pot').textContent()).toMatch(/found in 0 of 1 closed job\s*$/)
     // The cause confirmed by the team now leads the list.
     expect(await page.locator('[data-testid="cause-list"] > li').first().getAttribute('data-testid')).toBe('cause-shorted-fet')
     await screenshot(page, 'guided-diagnosis-evidence')

@@ -71,7 +71,7 @@ export function mockRecord(overrides: Partial<RecordDto> = {}): RecordDto {
 }
 
 export function mockEvidence(causeKey: string, posterior: number, overrides: Partial<EvidenceCauseDto> = {}): EvidenceCauseDto {
-  return { id: `dimmer-stays-dark:${causeKey}`, procedureSlug: 'dimmer-stays-dark', causeKey, label: causeKey, posterior, confirmed: 1, of: 4, support: `confirmed in 1 of 4 records`, ...overrides }
+  return { id: `dimmer-stays-dark:${causeKey}`, procedureSlug: 'dimmer-stays-dark', causeKey, label: causeKey, posterior, confirmed: 1, of: 4, support: `found in 1 of 4 closed jobs`, ...overrides }
 }
 
 export function mockRevision(overrides: Partial<RevisionDetailDto> = {}): RevisionDetailDto {
