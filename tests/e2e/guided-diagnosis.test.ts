@@ -75,7 +75,9 @@ describe('guided diagnosis at the bench, in Chromium', () => {
     await pot.fill('')
     await pot.pressSequentially('470K')
     await expect.poll(() => page.getByTestId('verdict-pot').getAttribute('data-state'), WAIT).toBe('in_range')
-    await page.getByTestId('step-done-fet-diode').click()
+    // A readable reading marks its step done by itself; the mark follows the reading, not a tap.
+    expect(await page.getByTestId('step-done-fet-diode').getAttribute('aria-pressed')).toBe('true')
+    expect(await page.getByTestId('step-done-fet-diode').isDisabled()).toBe(true)
 
     // Saved as it goes: a reload brings the readings back.
     await expect.poll(() => page.getByTestId('record-save-status').getAttribute('data-state'), { timeout: 20_000 }).toBe('saved')
