@@ -174,6 +174,18 @@ describe('reasoning at the bench', () => {
       expect(bench.reasoning?.next?.findsFault).toBeCloseTo(0.189 / 0.376, 10)
     })
 
+    it('gives the minutes alone for a step of the flow that finds no cause itself', async () => {
+      const content = mockFlowContent()
+      content.steps[0] = { ...content.steps[0]!, verdicts: { low: { next: 'pot' }, in_range: { next: 'pot' } } }
+      bench.load(mockRecord({ guide: { ...mockRecord().guide!, content } }))
+      const view = await mountSuspended(NextStep)
+      expect(bench.reasoning?.next).toMatchObject({ stepKey: 'fet-diode', findsFault: 0 })
+      expect(t(view.get('[data-testid="next-step-figures"]'))).toBe('about 3 min')
+      bench.setReading('fet-diode', '0.58')
+      await nextTick()
+      expect(t(view.get('[data-testid="next-step-figures"]'))).toMatch(/^about 6 min · \d+ % it finds the fault$/)
+    })
+
     it('says where the flow goes after a verdict, greys what it skipped, and offers to close with what it confirms', async () => {
       bench.load(flowRecord())
       const view = await mountSuspended(GuidedSteps)
