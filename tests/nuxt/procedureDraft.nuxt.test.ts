@@ -61,6 +61,15 @@ describe('the procedure draft in the editor', () => {
     expect(card.text()).not.toMatch(/open-pot|shorted-fet|dry-cap/)
   })
 
+  it('shows a verdict that names the following step as going on to it', async () => {
+    draft.content.steps[0]!.verdicts = { in_range: { next: draft.content.steps[1]!.key } }
+    const card = await mountSuspended(EditorStepVerdicts, { props: { stepIndex: 0 } })
+    const select = card.get('[data-testid="verdict-then-0-in_range"]')
+    expect((select.element as HTMLSelectElement).value).toBe('')
+    expect(select.findAll('option').map(o => o.text())).not.toContainEqual(expect.stringMatching(/no longer in this procedure/))
+    expect(select.findAll('option')[0]!.text()).toBe('Go on to step 2')
+  })
+
   it('hides the keys of causes and steps', async () => {
     const list = await mountSuspended(EditorCauseList)
     draft.addCause()
