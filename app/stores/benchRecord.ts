@@ -2,10 +2,11 @@ import { defineStore } from 'pinia'
 import { computed, ref } from 'vue'
 import { useAutosave } from '../composables/useAutosave'
 import {
-  copyWork, emptyStepWork, emptyWork, judgeSteps, progressOf, raisedByReadings, rankLikelyCauses, workBody, workFromRecord,
-  type BenchWork, type LikelyCause, type StepWork,
+  NO_FAULT, UNCONFIRMED, copyWork, doneByReading, emptyStepWork, emptyWork, judgeStep, judgeSteps, progressOf, workBody, workFromRecord,
+  type BenchWork, type StepWork,
 } from '../utils/benchWork'
-import type { EvidenceCauseDto, RecordDto } from '#shared/types/records'
+import { reasonAbout } from '../utils/benchReasoning'
+import type { RecordDto } from '#shared/types/records'
 
 /** How long the guided view waits after the last keystroke before it saves. */
 export const RECORD_SAVE_DELAY_MS = 900
@@ -46,21 +47,64 @@ export const useBenchRecordStore = defineStore('benchRecord', () => {
   })
   const { version, saving, failure, savedAt, conflict, setAside, dirty, status, save, flush, keepMine, takeTheirs, restoreSetAside, discardSetAside } = autosave
 
-  /** Verdicts of every step that has a measurement, as typed now. */
+  /** The verdict of every step, as typed now. */
   const readings = computed(() => judgeSteps(guideSteps.value, work.value.steps))
-  const raised = computed(() => raisedByReadings(guideSteps.value, work.value.steps))
   const progress = computed(() => progressOf(guideSteps.value, work.value.steps))
-
-  function likelyCauses(evidence: EvidenceCauseDto[] | null | undefined): LikelyCause[] {
+  /** The step read last (this sitting, or by the stored reading times), whose change is shown. */
+  const lastStep = ref<string | null>(null)
+  /** Probabilities, the next step, where a flow stands: the same functions as the server, on every keystroke. */
+  const reasoning = computed(() => {
     const r = record.value
-    if (!r?.guide || !r.procedure) return []
-    return rankLikelyCauses({ procedureSlug: r.procedure.slug, causes: r.guide.content.causes, evidence, raised: raised.value })
+    if (!r?.guide || !r.procedure) return null
+    const done = Object.fromEntries(Object.entries(work.value.steps).map(([k, s]) => [k, s.done]))
+    return reasonAbout({ procedureSlug: r.procedure.slug, content: r.guide.content, reasoning: r.reasoning, readings: readings.value, done, lastStep: lastStep.value })
+  })
+
+  /**
+   * Types a reading: a readable one marks the step done, one that cannot be read (or is asked
+   * about) leaves it not done, and clearing it undoes the mark.
+   */
+  function setReading(key: string, value: string) {
+    const step = guide.value?.content.steps.find(s => s.key === key)
+    const entry = stepWork(key)
+    entry.value = value
+    if (!step) return
+    const done = doneByReading(judgeStep(step, value))
+    entry.done = done ?? false
+    if (done) lastStep.value = key
+  }
+
+  /** Whether the technician may mark a step done by hand: only while its reading says nothing. */
+  function canMarkDone(key: string): boolean {
+    return readings.value[key]?.state === 'empty' || readings.value[key] === undefined
+  }
+
+  function toggleDone(key: string) {
+    if (canMarkDone(key)) stepWork(key).done = !stepWork(key).done
+  }
+
+  /** Takes the flow's conclusion into the close form: its cause, or passing the job on. */
+  function acceptConclusion() {
+    const c = reasoning.value?.concluded
+    if (!c) return
+    const close = work.value.close
+    if (c.id) {
+      close.cause = c.id
+      if (close.outcome === 'no_fault_found') close.outcome = ''
+    }
+    else {
+      close.outcome = 'escalated'
+      if (close.cause === '' || close.cause === NO_FAULT) close.cause = UNCONFIRMED
+    }
   }
 
   function load(next: RecordDto) {
     record.value = next
     work.value = workFromRecord(next)
     autosave.loaded({ version: next.version })
+    // The last reading stored is the one whose change is shown after a reload.
+    const read = Object.entries(next.steps ?? {}).filter(([, e]) => e.verdict && e.readAt).sort((a, b) => b[1].readAt!.localeCompare(a[1].readAt!))
+    lastStep.value = read[0]?.[0] ?? null
   }
 
   /**
@@ -112,8 +156,8 @@ export const useBenchRecordStore = defineStore('benchRecord', () => {
 
   return {
     record, version, work, saving, failure, savedAt, conflict, setAside,
-    open, editable, guide, dirty, status, readings, raised, progress,
-    likelyCauses, load, save, flush, saveOnLeave, keepMine, takeTheirs, restoreSetAside, discardSetAside,
-    stepWork, close, amend,
+    open, editable, guide, dirty, status, readings, progress, reasoning, lastStep,
+    load, save, flush, saveOnLeave, keepMine, takeTheirs, restoreSetAside, discardSetAside,
+    stepWork, setReading, canMarkDone, toggleDone, acceptConclusion, close, amend,
   }
 })

@@ -4,7 +4,7 @@ import { useAutosave } from '../composables/useAutosave'
 import { apiErrorFields, apiErrorMessage } from '../utils/apiError'
 import {
   addDraftItem, addDraftPart, attachStepImage, cloneDraft, completenessErrors, detachStepImage, fieldId, moveWithin,
-  readDraft, removeDraftCause, renameDraftItem, visibleErrors as errorsToShow, type DraftItemKind, type KeyFollowers,
+  readDraft, removeDraftCause, removeDraftStep, renameDraftItem, visibleErrors as errorsToShow, type KeyFollowers,
 } from '../utils/procedureDraft'
 import type { DraftContent } from '#shared/types/procedure'
 import type { AttachmentDto, DraftSavedDto, RevisionDetailDto } from '#shared/types/procedure-api'
@@ -120,7 +120,6 @@ export const useProcedureDraftStore = defineStore('procedureDraft', () => {
   // Causes, steps, parts, images ---------------------------------------------------------------
 
   const c = () => content.value
-  const keyFollowsName = (kind: DraftItemKind, key: string) => keysFollowingNames.value.includes(`${kind}:${key}`)
 
   function attachImage(stepIndex: number, image: DraftAttachment) {
     const step = c().steps[stepIndex]
@@ -162,14 +161,14 @@ export const useProcedureDraftStore = defineStore('procedureDraft', () => {
     savedJson, seenJson,
     dirty, status, clientErrors, complete, visibleErrors,
     load, save, flush, keepMine, takeTheirs, restoreSetAside, discardSetAside,
-    fieldAttrs, touch, requestFocus, itemKey, keyFollowsName,
+    fieldAttrs, touch, requestFocus, itemKey,
     addCause: () => addDraftItem(c(), keysFollowingNames.value, 'cause'),
     renameCause: (index: number, name: string) => renameDraftItem(c(), keysFollowingNames.value, 'cause', index, name),
     removeCause: (index: number) => removeDraftCause(c(), index),
     moveCause: (from: number, to: number) => moveWithin(c().causes, from, to),
     addStep: () => addDraftItem(c(), keysFollowingNames.value, 'step'),
     retitleStep: (index: number, title: string) => renameDraftItem(c(), keysFollowingNames.value, 'step', index, title),
-    removeStep: (index: number) => void c().steps.splice(index, 1),
+    removeStep: (index: number) => removeDraftStep(c(), index),
     moveStep: (from: number, to: number) => moveWithin(c().steps, from, to),
     addPart: () => addDraftPart(c()),
     removePart: (index: number) => void c().parts.splice(index, 1),

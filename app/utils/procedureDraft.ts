@@ -1,4 +1,5 @@
 import { DraftContent, RevisionContent, type DraftStep } from '#shared/types/procedure'
+import { ESCALATE, STEP_VERDICTS, type StepVerdict } from '#shared/types/verdicts'
 import { HAZARDS, type Hazard } from '#shared/types/hazards'
 import { describeZodError } from '#shared/utils/validation'
 
@@ -94,6 +95,8 @@ const FIELD_LABELS: Record<string, string> = {
   key: 'key', name: 'name', detail: 'detail', prior: 'how likely', title: 'title', instruction: 'instruction',
   quantity: 'what is measured', unit: 'unit', min: 'lowest good reading', max: 'highest good reading', nominal: 'nominal value',
   tolerancePct: 'tolerance', openExpected: 'open is good', failPointsTo: 'causes it points to', imageIds: 'photos',
+  verdicts: 'what the reading means', in_range: 'if it reads in range', low: 'if it reads low', high: 'if it reads high', open: 'if it reads OL',
+  pass: 'if it passes', fail: 'if it fails', causes: 'causes', next: 'next step', conclude: 'what it confirms', minutes: 'minutes',
   partNumber: 'part number', substitutes: 'substitutes',
 }
 
@@ -145,7 +148,7 @@ export function addDraftItem(content: DraftContent, followers: KeyFollowers, kin
   const list = listOf(content, kind)
   const key = keyFromName('', list.map(i => i.key), `${kind}_${list.length + 1}`)
   if (kind === 'cause') content.causes.push(DraftCauseSchema.parse({ key }))
-  else content.steps.push(DraftStepSchema.parse({ key, failPointsTo: [], imageIds: [] }))
+  else content.steps.push(DraftStepSchema.parse({ key, imageIds: [] }))
   followers.push(`${kind}:${key}`)
 }
 
@@ -160,34 +163,101 @@ export function renameDraftItem(content: DraftContent, followers: KeyFollowers, 
   if (follows < 0 || !name.trim()) return
   const next = keyFromName(name, list.map(i => i.key).filter(k => k !== item.key), `${kind}_${index + 1}`)
   if (next === item.key) return
-  if (kind === 'cause') {
-    for (const step of content.steps) step.failPointsTo = step.failPointsTo?.map(k => (k === item.key ? next : k))
-  }
+  renameReferences(content, kind, item.key, next)
   followers[follows] = `${kind}:${next}`
   item.key = next
 }
 
-/** Removes a cause, and every step's pointer to it. */
+type VerdictEntryDraft = NonNullable<NonNullable<DraftStep['verdicts']>[StepVerdict]>
+
+function eachEntry(content: DraftContent, visit: (entry: VerdictEntryDraft, step: DraftStep, verdict: StepVerdict) => void): void {
+  for (const step of content.steps) {
+    for (const verdict of STEP_VERDICTS) {
+      const entry = step.verdicts?.[verdict]
+      if (entry) visit(entry, step, verdict)
+    }
+  }
+}
+
+/** A verdict entry that says nothing any more is taken out, so the step reads as the author left it. */
+function pruneEntry(step: DraftStep, verdict: StepVerdict): void {
+  const entry = step.verdicts?.[verdict]
+  if (!entry) return
+  if (entry.causes?.length === 0) delete entry.causes
+  if (entry.causes === undefined && entry.next === undefined && entry.conclude === undefined) delete step.verdicts![verdict]
+}
+
+/** Verdicts that name a cause (or lead to a step) by its old key follow it to the new one. */
+function renameReferences(content: DraftContent, kind: DraftItemKind, from: string, to: string): void {
+  eachEntry(content, (entry) => {
+    if (kind === 'cause') {
+      entry.causes = entry.causes?.map(k => (k === from ? to : k))
+      if (entry.conclude === from) entry.conclude = to
+    }
+    else if (entry.next === from) entry.next = to
+  })
+}
+
+/** Removes a cause, and every verdict's mention of it. */
 export function removeDraftCause(content: DraftContent, index: number): void {
   const [cause] = content.causes.splice(index, 1)
   if (!cause) return
-  for (const step of content.steps) step.failPointsTo = step.failPointsTo?.filter(k => k !== cause.key)
+  eachEntry(content, (entry, step, verdict) => {
+    entry.causes = entry.causes?.filter(k => k !== cause.key)
+    if (entry.conclude === cause.key) delete entry.conclude
+    pruneEntry(step, verdict)
+  })
 }
+
+/** Removes a step; verdicts that led to it go on to the following step instead. */
+export function removeDraftStep(content: DraftContent, index: number): void {
+  const [step] = content.steps.splice(index, 1)
+  if (!step) return
+  eachEntry(content, (entry, s, verdict) => {
+    if (entry.next === step.key) delete entry.next
+    pruneEntry(s, verdict)
+  })
+}
+
+/** What a verdict leads to in the editor's terms: '' (the following step), `next:<step key>` or `conclude:<cause key | escalate>`. */
+export type VerdictTarget = '' | `next:${string}` | `conclude:${string}`
+
+export function verdictTarget(step: DraftStep, verdict: StepVerdict): VerdictTarget {
+  const entry = step.verdicts?.[verdict]
+  if (entry?.conclude !== undefined) return `conclude:${entry.conclude}`
+  if (entry?.next !== undefined) return `next:${entry.next}`
+  return ''
+}
+
+/** Sets where a verdict leads: to a step, to a conclusion, or on to the following step. */
+export function setVerdictTarget(step: DraftStep, verdict: StepVerdict, target: VerdictTarget): void {
+  const entry = ((step.verdicts ??= {})[verdict] ??= {})
+  delete entry.next
+  delete entry.conclude
+  if (target.startsWith('next:')) entry.next = target.slice(5)
+  else if (target.startsWith('conclude:')) entry.conclude = target.slice(9)
+  pruneEntry(step, verdict)
+}
+
+/** Turns a verdict's pointer to a cause on or off, keeping the causes in the order of the cause list. */
+export function toggleVerdictCause(step: DraftStep, verdict: StepVerdict, causeKeys: string[], key: string, on: boolean): void {
+  const entry = ((step.verdicts ??= {})[verdict] ??= {})
+  const now = entry.causes ?? []
+  const next = on ? [...now, key] : now.filter(k => k !== key)
+  entry.causes = causeKeys.filter(k => next.includes(k)).concat(next.filter(k => !causeKeys.includes(k)))
+  pruneEntry(step, verdict)
+}
+
+/** Takes out everything a verdict says (one the step can no longer give). */
+export function dropVerdict(step: DraftStep, verdict: StepVerdict): void {
+  if (step.verdicts) delete step.verdicts[verdict]
+}
+
+/** Whether a conclusion names the keyword for handing a job on. */
+export const isEscalation = (target: VerdictTarget) => target === `conclude:${ESCALATE}`
 
 export function addDraftPart(content: DraftContent): void {
   content.parts.push(DraftPartSchema.parse({ partNumber: '' }))
-}
-
-/** Turns a step's pointer to a cause on or off, keeping pointers in the order of the cause list (the author's order of likelihood). */
-export function toggleFailPointer(step: DraftStep, causeKeys: string[], key: string, on: boolean): void {
-  const now = step.failPointsTo ?? []
-  const next = on ? [...now, key] : now.filter(k => k !== key)
-  step.failPointsTo = causeKeys.filter(k => next.includes(k)).concat(next.filter(k => !causeKeys.includes(k)))
-}
-
-/** A step's pointers to causes that are no longer in the list. */
-export function strayPointers(step: DraftStep, causeKeys: string[]): string[] {
-  return (step.failPointsTo ?? []).filter(k => !causeKeys.includes(k))
 }
 
 /** The hazards after ticking one: "none" excludes the others, as the schema demands. */
@@ -212,6 +282,8 @@ const indented = (text: string) => text.split('\n').map(l => `  ${l}`)
 
 /** The whole draft as plain lines, the form two versions are compared and copied in. */
 export function draftOutline(c: DraftContent, changeNote: string): string {
+  const causeName = new Map(c.causes.map(x => [x.key, x.name]))
+  const stepTitle = new Map(c.steps.map(x => [x.key, x.title]))
   const lines: string[] = [
     `Title: ${c.title}`,
     `Device type: ${c.deviceType || '—'}`,
@@ -221,17 +293,27 @@ export function draftOutline(c: DraftContent, changeNote: string): string {
   ]
   if (c.summary.trim()) lines.push('Summary:', ...indented(c.summary))
   c.causes.forEach((cause, i) => {
-    lines.push(`Cause ${i + 1}: ${cause.name} [${cause.key}] prior ${cause.prior}`)
+    lines.push(`Cause ${i + 1}: ${cause.name}, how likely ${cause.prior}`)
     if (cause.detail.trim()) lines.push(...indented(cause.detail))
   })
   c.steps.forEach((step, i) => {
-    lines.push(`Step ${i + 1}: ${step.title} [${step.key}]`, ...indented(step.instruction))
+    lines.push(`Step ${i + 1}: ${step.title}`, ...indented(step.instruction))
     const m = step.measurement
     if (m) {
       const range = [m.min !== undefined ? `min ${m.min}` : '', m.max !== undefined ? `max ${m.max}` : '', m.nominal !== undefined ? `nominal ${m.nominal}` : '', m.tolerancePct !== undefined ? `± ${m.tolerancePct} %` : '', m.openExpected ? 'open is good' : ''].filter(Boolean).join(', ')
       lines.push(`  Reading: ${m.quantity.replace('_', ' ')} in ${m.unit}; ${range || 'no range'}`)
     }
-    if (step.failPointsTo?.length) lines.push(`  Fails point to: ${step.failPointsTo.join(', ')}`)
+    for (const verdict of STEP_VERDICTS) {
+      const e = step.verdicts?.[verdict]
+      if (!e) continue
+      const said = [
+        e.causes?.length ? `points to ${e.causes.map(k => causeName.get(k) ?? k).join(', ')}` : '',
+        e.next ? `go to ${stepTitle.get(e.next) ?? e.next}` : '',
+        e.conclude ? `confirms ${causeName.get(e.conclude) ?? e.conclude}` : '',
+      ].filter(Boolean).join('; ')
+      lines.push(`  If ${verdict.replace('_', ' ')}: ${said}`)
+    }
+    if (step.minutes) lines.push(`  About ${step.minutes} min`)
     if (step.imageIds?.length) lines.push(`  Photos: ${step.imageIds.join(', ')}`)
   })
   c.parts.forEach((part, i) => lines.push(`Part ${i + 1}: ${part.name}${part.partNumber ? ` (${part.partNumber})` : ''}${part.substitutes.length ? ` — or ${part.substitutes.join(', ')}` : ''}`))

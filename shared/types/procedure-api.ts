@@ -112,7 +112,13 @@ export interface Paginated<T> {
 
 /** GET /api/revisions/[a]/compare/[b] */
 export interface TextDiffPart { value: string, added?: boolean, removed?: boolean }
-export interface FieldChange { field: string, label: string, parts: TextDiffPart[] }
+export interface FieldChange {
+  field: string
+  label: string
+  parts: TextDiffPart[]
+  /** The change in one sentence, where a word diff would not say it well: `if it reads low: was → step 4, now → confirms Bridge diode shorted`. */
+  summary?: string
+}
 export type ItemChangeKind = 'added' | 'removed' | 'changed' | 'moved' | 'unchanged'
 export interface ItemChange {
   key: string

@@ -122,10 +122,10 @@ export interface RankedCause {
 /** Records' worth of weight given to the author's priors when none is named. */
 export const DEFAULT_PRIOR_WEIGHT = 5
 
-/** The line shown under a ranked cause, e.g. "confirmed in 14 of 20 records". */
+/** The line shown under a ranked cause, e.g. "found in 14 of 20 closed jobs". */
 export function describeSupport(confirmed: number, totalRecords: number): string {
-  if (totalRecords <= 0) return 'no confirmed records yet'
-  return `confirmed in ${confirmed} of ${totalRecords} ${totalRecords === 1 ? 'record' : 'records'}`
+  if (totalRecords <= 0) return 'no closed jobs name a cause yet'
+  return `found in ${confirmed} of ${totalRecords} closed ${totalRecords === 1 ? 'job' : 'jobs'}`
 }
 
 /**

@@ -271,7 +271,7 @@ describe('evidence', () => {
     for (const cause of rev!.content.causes) {
       const hand = confirmed.filter(r => r.causeProcedureId === proc!.id && r.causeKey === cause.key).length
       const row = res.body.data.find((d: { causeKey: string }) => d.causeKey === cause.key)
-      expect(row, cause.key).toMatchObject({ confirmed: hand, of: confirmed.length, support: `confirmed in ${hand} of ${confirmed.length} records` })
+      expect(row, cause.key).toMatchObject({ confirmed: hand, of: confirmed.length, support: `found in ${hand} of ${confirmed.length} closed jobs` })
     }
     const total = res.body.data.reduce((s: number, d: { posterior: number }) => s + d.posterior, 0)
     expect(total).toBeCloseTo(1, 9)

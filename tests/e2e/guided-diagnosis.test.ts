@@ -48,7 +48,7 @@ describe('guided diagnosis at the bench, in Chromium', () => {
   it('types readings, sees verdicts, closes with a cause and a photo, and the evidence on the procedure page follows', async () => {
     const { page } = browser
     await open(page, `/procedures/${slug}`)
-    await expect.poll(() => page.getByTestId('cause-evidence-shorted-fet').textContent(), WAIT).not.toMatch(/confirmed in 1 of/)
+    await expect.poll(() => page.getByTestId('cause-evidence-shorted-fet').textContent(), WAIT).not.toMatch(/found in 1 of/)
     await page.getByTestId('start-diagnosis').click()
     await page.waitForURL(url => url.pathname === '/records/new', WAIT)
     await waitForHydration(page)
@@ -75,7 +75,9 @@ describe('guided diagnosis at the bench, in Chromium', () => {
     await pot.fill('')
     await pot.pressSequentially('470K')
     await expect.poll(() => page.getByTestId('verdict-pot').getAttribute('data-state'), WAIT).toBe('in_range')
-    await page.getByTestId('step-done-fet-diode').click()
+    // A readable reading marks its step done by itself; the mark follows the reading, not a tap.
+    expect(await page.getByTestId('step-done-fet-diode').getAttribute('aria-pressed')).toBe('true')
+    expect(await page.getByTestId('step-done-fet-diode').isDisabled()).toBe(true)
 
     // Saved as it goes: a reload brings the readings back.
     await expect.poll(() => page.getByTestId('record-save-status').getAttribute('data-state'), { timeout: 20_000 }).toBe('saved')
@@ -105,8 +107,8 @@ describe('guided diagnosis at the bench, in Chromium', () => {
 
     // The closed record counts as evidence on the procedure page.
     await open(page, `/procedures/${slug}`)
-    await expect.poll(() => page.getByTestId('cause-evidence-shorted-fet').textContent(), WAIT).toMatch(/confirmed in 1 of 1 record\s*$/)
-    expect(await page.getByTestId('cause-evidence-open-pot').textContent()).toMatch(/confirmed in 0 of 1 record\s*$/)
+    await expect.poll(() => page.getByTestId('cause-evidence-shorted-fet').textContent(), WAIT).toMatch(/found in 1 of 1 closed job\s*$/)
+    expect(await page.getByTestId('cause-evidence-open-pot').textContent()).toMatch(/found in 0 of 1 closed job\s*$/)
     // The cause confirmed by the team now leads the list.
     expect(await page.locator('[data-testid="cause-list"] > li').first().getAttribute('data-testid')).toBe('cause-shorted-fet')
     await screenshot(page, 'guided-diagnosis-evidence')

@@ -5,7 +5,6 @@ import sharp from 'sharp'
 import type { Locator, Page } from 'playwright-core'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { RevisionDetailDto } from '#shared/types/procedure-api'
-import { verdictCauses } from '#shared/types/verdicts'
 import { DEMO, DEMO_PASSWORD, signedIn, type ApiClient } from '../helpers/api'
 import { openBrowser, openHydrated, screenshot } from '../helpers/browser'
 
@@ -119,9 +118,8 @@ describe('writing, reviewing and publishing a procedure in Chromium', () => {
     await page.getByTestId('add-cause').click()
     await page.getByTestId('cause-name-1').fill('Fusible resistor R1 open')
     await page.getByTestId('cause-prior-1').fill('0.25')
-    const mosfetKey = (await page.getByTestId('cause-key-0').textContent())!.trim()
-    // The key follows the name while the cause is new.
-    expect(mosfetKey).toMatch(/^mosfet_q1_shorted/)
+    // Keys are made from the names and never shown to the author.
+    expect(await page.getByTestId('cause-key-0').count()).toBe(0)
 
     // Step 1: making the unit safe. Step 2: a reading that points to the MOSFET when it fails.
     await page.getByTestId('add-step').click()
@@ -137,7 +135,10 @@ describe('writing, reviewing and publishing a procedure in Chromium', () => {
     await second.locator('[data-testid^="measurement-max-"]').fill('0.9')
     // The reading is described the way the reader will show it once the window is complete.
     await expect.poll(() => second.locator('[data-testid^="measurement-expected-"]').textContent(), WAIT).toMatch(/0\.4.*0\.9/)
-    await second.locator(`[data-testid^="fail-point-"][data-testid$="-${mosfetKey}"]`).check()
+    // A reading near 0 V (a short) or OL (an open junction) points to the MOSFET.
+    await second.getByTestId('verdict-cause-1-low-0').click()
+    await second.getByTestId('verdict-cause-1-open-0').click()
+    expect(await second.getByTestId('verdict-cause-1-low-0').getAttribute('aria-pressed')).toBe('true')
 
     // A bench photo through the editor's own upload.
     await second.locator('input[type="file"]').setInputFiles(photo)
@@ -158,9 +159,10 @@ describe('writing, reviewing and publishing a procedure in Chromium', () => {
     const measured = saved.content.steps[1]!
     measuredStepKey = measured.key
     expect(measured.measurement).toMatchObject({ quantity: 'diode_drop', unit: 'V', min: 0.4, max: 0.9 })
-    // Stored per verdict: the cause ticked for a failing reading is named by every failing verdict.
-    expect(measured.failPointsTo).toBeUndefined()
-    for (const verdict of ['low', 'high', 'open'] as const) expect(verdictCauses(measured, verdict)).toEqual([mosfetKey])
+    const mosfetKey = saved.content.causes[0]!.key
+    // The key follows the name while the cause is new.
+    expect(mosfetKey).toMatch(/^mosfet_q1_shorted/)
+    expect(measured.verdicts).toEqual({ low: { causes: [mosfetKey] }, open: { causes: [mosfetKey] } })
     expect(measured.imageIds).toEqual([imageId])
     await screenshot(page, 'review-flow-1-draft')
 
@@ -246,6 +248,15 @@ describe('writing, reviewing and publishing a procedure in Chromium', () => {
     await page.getByTestId(`queue-open-${secondRevisionId}`).click()
     await page.waitForURL(new RegExp(`/review/${secondRevisionId}$`), WAIT)
     await page.getByTestId('review-content').waitFor(WAIT)
+    // Nothing is live yet: the resubmission is compared with the revision that was sent back,
+    // whose comments show beside the changes.
+    expect(await page.getByTestId('review-first-revision').count()).toBe(0)
+    expect(await page.getByTestId('review-compared-with').textContent()).toMatch(/revision 1, which was sent back/)
+    expect(await page.getByTestId('review-sent-back').textContent()).toContain('reversed reading')
+    const changedStep = page.getByTestId(`item-change-steps-${measuredStepKey}`)
+    expect(await changedStep.getAttribute('data-kind')).toBe('changed')
+    expect((await changedStep.locator('ins').allTextContents()).join(' ')).toMatch(/revised/)
+    await screenshot(page, 'review-flow-6-resubmission')
     await page.getByTestId('decide-approve').click()
     await page.getByTestId('decision-form').waitFor()
     await screenshot(page, 'review-flow-6-approve')

@@ -1,8 +1,7 @@
 import { mountSuspended } from '@nuxt/test-utils/runtime'
 import { afterEach, beforeEach, describe, expect, it, vi } from 'vitest'
 import { nextTick } from 'vue'
-import { apiError, fakeFetch, mockEvidence, mockRecord } from './factories'
-import LikelyCauses from '~/components/records/LikelyCauses.vue'
+import { apiError, fakeFetch, mockRecord } from './factories'
 import ReadingInput from '~/components/records/ReadingInput.vue'
 import SaveConflict from '~/components/records/SaveConflict.vue'
 import AppSaveStatus from '~/components/app/AppSaveStatus.vue'
@@ -44,43 +43,20 @@ describe('the bench record on the guided view', () => {
     expect(bench.readings[key]).toMatchObject({ state: 'judged', verdict, pass })
   })
 
-  it('leaves a step without a measurement unjudged, and says what it cannot read', () => {
+  it('says what it cannot read, and judges a check from its words', () => {
     bench.stepWork('fet-diode').value = 'about half'
     expect(bench.readings['fet-diode']).toMatchObject({ state: 'unreadable' })
-    expect(bench.readings.look).toBeUndefined()
+    bench.stepWork('look').value = 'fail'
+    expect(bench.readings.look).toMatchObject({ state: 'judged', verdict: 'fail', pass: false })
   })
 
   it('shows the verdict beside the input as it is typed', async () => {
-    const spec = mockRecord().guide!.content.steps[0]!.measurement!
-    const input = await mountSuspended(ReadingInput, { props: { spec, modelValue: '0.05', stepKey: 'fet-diode', failPointsTo: ['shorted-fet'], causeNames: { 'shorted-fet': 'Shorted switching MOSFET' } } })
+    const step = mockRecord().guide!.content.steps[0]!
+    const input = await mountSuspended(ReadingInput, { props: { step, modelValue: '0.05', causeNames: { 'shorted-fet': 'Shorted switching MOSFET' } } })
     expect(input.get('[data-testid="verdict-fet-diode"]').attributes('data-state')).toBe('low')
     expect(input.get('[data-testid="reading-raises-fet-diode"]').text()).toContain('Shorted switching MOSFET')
     await input.setProps({ modelValue: '0.61' })
     expect(input.get('[data-testid="verdict-fet-diode"]').attributes('data-state')).toBe('in_range')
-  })
-
-  it('counts the steps marked done', () => {
-    expect(bench.progress).toEqual({ done: 0, total: 3 })
-    bench.stepWork('look').done = true
-    bench.stepWork('pot').done = true
-    expect(bench.progress).toEqual({ done: 2, total: 3 })
-  })
-
-  it('ranks by the author\'s priors, normalised, while there is no evidence', () => {
-    const ranked = bench.likelyCauses(null)
-    expect(ranked.map(c => c.key)).toEqual(['shorted-fet', 'open-pot', 'dry-cap'])
-    // 0.6 / (0.6 + 0.3 + 0.1) = 0.6: each prior over their sum.
-    expect(ranked[0]!.posterior).toBeCloseTo(0.6, 10)
-    expect(ranked.every(c => c.support === null)).toBe(true)
-  })
-
-  it('puts causes raised by failing readings first, then the evidence, and says which reading raised each', async () => {
-    const evidence = [mockEvidence('shorted-fet', 0.2), mockEvidence('open-pot', 0.1), mockEvidence('dry-cap', 0.7)]
-    expect(bench.likelyCauses(evidence).map(c => c.key)).toEqual(['dry-cap', 'shorted-fet', 'open-pot'])
-    bench.stepWork('pot').value = '4k7'
-    const panel = await mountSuspended(LikelyCauses, { props: { evidence, totalRecords: 4 } })
-    expect(panel.findAll('[data-testid^="likely-"][data-rank]').map(li => li.attributes('data-testid'))).toEqual(['likely-open-pot', 'likely-dry-cap', 'likely-shorted-fet'])
-    expect(panel.get('[data-testid="likely-raised-open-pot"]').text()).toContain('step 2 read')
   })
 
   describe('saving', () => {

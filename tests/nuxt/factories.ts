@@ -17,6 +17,24 @@ export function mockGuideContent(overrides: Partial<RevisionContent> = {}): Revi
   return { ...content, ...overrides }
 }
 
+/**
+ * The same guide as a branching procedure: the body diode decides first (low confirms the
+ * MOSFET, in range goes on to the potentiometer), the potentiometer next (out of range confirms
+ * it), then a look at the capacitors (a fail confirms them, a pass hands the job on).
+ */
+export function mockFlowContent(): RevisionContent {
+  const c = mockGuideContent()
+  const [diode, pot, look] = c.steps
+  return RevisionContent.parse({
+    ...c,
+    steps: [
+      { ...diode, verdicts: { low: { conclude: 'shorted-fet' }, high: { causes: ['shorted-fet'] }, open: { causes: ['shorted-fet'], next: 'look' }, in_range: { next: 'pot' } }, minutes: 3 },
+      { ...pot, verdicts: { low: { conclude: 'open-pot' }, high: { conclude: 'open-pot' }, open: { conclude: 'open-pot' }, in_range: { next: 'look' } }, minutes: 6 },
+      { ...look, verdicts: { fail: { conclude: 'dry-cap' }, pass: { conclude: 'escalate' } }, minutes: 2 },
+    ],
+  })
+}
+
 export function mockRecord(overrides: Partial<RecordDto> = {}): RecordDto {
   const content = mockGuideContent()
   return {
@@ -53,7 +71,7 @@ export function mockRecord(overrides: Partial<RecordDto> = {}): RecordDto {
 }
 
 export function mockEvidence(causeKey: string, posterior: number, overrides: Partial<EvidenceCauseDto> = {}): EvidenceCauseDto {
-  return { id: `dimmer-stays-dark:${causeKey}`, procedureSlug: 'dimmer-stays-dark', causeKey, label: causeKey, posterior, confirmed: 1, of: 4, support: `confirmed in 1 of 4 records`, ...overrides }
+  return { id: `dimmer-stays-dark:${causeKey}`, procedureSlug: 'dimmer-stays-dark', causeKey, label: causeKey, posterior, confirmed: 1, of: 4, support: `found in 1 of 4 closed jobs`, ...overrides }
 }
 
 export function mockRevision(overrides: Partial<RevisionDetailDto> = {}): RevisionDetailDto {

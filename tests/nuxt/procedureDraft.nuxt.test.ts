@@ -4,7 +4,10 @@ import { nextTick } from 'vue'
 import { apiError, fakeFetch, mockGuideContent, mockRevision } from './factories'
 import EditorCauseList from '~/components/editor/EditorCauseList.vue'
 import EditorErrorSummary from '~/components/editor/EditorErrorSummary.vue'
+import EditorFlowPreview from '~/components/editor/EditorFlowPreview.vue'
 import EditorHazardChoice from '~/components/editor/EditorHazardChoice.vue'
+import EditorStepVerdicts from '~/components/editor/EditorStepVerdicts.vue'
+import { setVerdictTarget, toggleVerdictCause } from '~/utils/procedureDraft'
 import { useProcedureDraftStore } from '~/stores/procedureDraft'
 import { DEFAULT_PRIOR } from '#shared/types/procedure'
 
@@ -25,15 +28,68 @@ describe('the procedure draft in the editor', () => {
     expect((list.get(`[data-testid="cause-prior-${i}"]`).element as HTMLInputElement).value).toBe(String(DEFAULT_PRIOR))
   })
 
-  it('keeps pointers in the order of the cause list, and drops them with the cause', () => {
-    const step = draft.content.steps[2]!
+  it('keeps what verdicts say in step with the causes and steps they name', () => {
+    const step = draft.content.steps[0]!
+    draft.addCause()
+    // A new cause's key follows its name, and so do the verdicts that name it.
+    toggleVerdictCause(step, 'low', draft.content.causes.map(c => c.key), 'cause_4', true)
+    setVerdictTarget(step, 'open', 'conclude:cause_4')
+    draft.renameCause(3, 'Gate resistor R7 open')
+    expect(step.verdicts?.low?.causes).toEqual(['shorted-fet', 'gate_resistor_r7_open'])
+    expect(step.verdicts?.open).toEqual({ causes: ['shorted-fet'], conclude: 'gate_resistor_r7_open' })
+    draft.removeCause(3)
+    expect(step.verdicts?.low).toEqual({ causes: ['shorted-fet'] })
+    expect(step.verdicts?.open).toEqual({ causes: ['shorted-fet'] })
+    // A removed step is no longer led to: the verdict goes on to the following step.
+    setVerdictTarget(step, 'in_range', 'next:look')
+    draft.removeStep(2)
+    expect(step.verdicts?.in_range).toBeUndefined()
+  })
+
+  it('sets per verdict the causes and where it leads, by name, with no key in sight', async () => {
+    const card = await mountSuspended(EditorStepVerdicts, { props: { stepIndex: 1 } })
+    const rows = card.findAll('[data-testid^="verdict-row-1-"]').map(r => r.attributes('data-testid'))
+    // 470 kΩ ± 20 %: a window with both ends, so in range, low, high and OL.
+    expect(rows).toEqual(['verdict-row-1-in_range', 'verdict-row-1-low', 'verdict-row-1-high', 'verdict-row-1-open'])
+    await card.get('[data-testid="verdict-cause-1-low-2"]').trigger('click')
+    expect(draft.content.steps[1]!.verdicts?.low?.causes).toEqual(['open-pot', 'dry-cap'])
+    await card.get('[data-testid="verdict-then-1-open"]').setValue('conclude:open-pot')
+    expect(draft.content.steps[1]!.verdicts?.open?.conclude).toBe('open-pot')
+    const options = card.get('[data-testid="verdict-then-1-open"]').findAll('option').map(o => o.text())
+    expect(options).toContain('This confirms: Open control potentiometer')
+    expect(options).toContain('Go to step 1: Diode-test the MOSFET body diode')
+    expect(card.text()).not.toMatch(/open-pot|shorted-fet|dry-cap/)
+  })
+
+  it('shows a verdict that names the following step as going on to it', async () => {
+    draft.content.steps[0]!.verdicts = { in_range: { next: draft.content.steps[1]!.key } }
+    const card = await mountSuspended(EditorStepVerdicts, { props: { stepIndex: 0 } })
+    const select = card.get('[data-testid="verdict-then-0-in_range"]')
+    expect((select.element as HTMLSelectElement).value).toBe('')
+    expect(select.findAll('option').map(o => o.text())).not.toContainEqual(expect.stringMatching(/no longer in this procedure/))
+    expect(select.findAll('option')[0]!.text()).toBe('Go on to step 2')
+  })
+
+  it('hides the keys of causes and steps', async () => {
+    const list = await mountSuspended(EditorCauseList)
     draft.addCause()
     draft.renameCause(3, 'Gate resistor R7 open')
-    draft.moveCause(3, 0)
-    expect(draft.content.causes.map(c => c.key)).toEqual(['gate_resistor_r7_open', 'shorted-fet', 'open-pot', 'dry-cap'])
-    step.failPointsTo = ['dry-cap']
-    draft.removeCause(3)
-    expect(step.failPointsTo).toEqual([])
+    await nextTick()
+    expect(list.find('[data-testid^="cause-key-"]').exists()).toBe(false)
+    expect(list.text()).not.toContain('gate_resistor_r7_open')
+  })
+
+  it('draws the flow as it is written and marks a broken branch at once', async () => {
+    const preview = await mountSuspended(EditorFlowPreview)
+    expect(preview.find('[data-testid="flow-preview-none"]').exists()).toBe(true)
+    setVerdictTarget(draft.content.steps[0]!, 'low', 'conclude:shorted-fet')
+    await vi.waitFor(() => expect(preview.find('[data-testid="flow-node-cause:shorted-fet"]').exists()).toBe(true))
+    expect(preview.find('[data-testid="flow-preview-issues"]').exists()).toBe(false)
+    // The last step sent back to the first: a loop.
+    setVerdictTarget(draft.content.steps[2]!, 'fail', 'next:fet-diode')
+    await vi.waitFor(() => expect(preview.find('[data-testid="flow-edge-step:look->step:fet-diode"]').exists()).toBe(true))
+    expect(preview.get('[data-testid="flow-edge-step:look->step:fet-diode"]').attributes('data-state')).toBe('broken')
+    expect(preview.get('[data-testid="flow-preview-issues"]').text()).toMatch(/makes a loop/)
   })
 
   it('moves and removes parts, and attaches, orders and detaches a step\'s photos', () => {

@@ -132,7 +132,7 @@ describe('rankCauses — the product ranking', () => {
     expect(ranked.map(r => r.id)).toEqual(['triac', 'pot', 'snubber'])
     // With N = 0 every P(s|c) is 1/2, so the posteriors are the normalised priors 0.5, 1/3, 1/6.
     expect(ranked.map(r => r.posterior)).toEqual([0.5, 1 / 3, 1 / 6].map(p => expect.closeTo(p, 12)))
-    expect(ranked.every(r => r.support === 'no confirmed records yet')).toBe(true)
+    expect(ranked.every(r => r.support === 'no closed jobs name a cause yet')).toBe(true)
   })
 
   it('matches the formula on a hand-worked case (computed from the contract)', () => {
@@ -144,7 +144,7 @@ describe('rankCauses — the product ranking', () => {
       symptoms: ['buzz'],
       totalRecords: 20,
     })
-    expect(ranked[0]).toMatchObject({ id: 'a', confirmed: 14, of: 20, support: 'confirmed in 14 of 20 records' })
+    expect(ranked[0]).toMatchObject({ id: 'a', confirmed: 14, of: 20, support: 'found in 14 of 20 closed jobs' })
     expect(ranked[0]!.logScore).toBeCloseTo(Math.log(0.45375), 12)
     expect(ranked[1]!.logScore).toBeCloseTo(Math.log(0.085), 12)
     expect(ranked[0]!.posterior).toBeCloseTo(0.45375 / 0.53875, 12)
@@ -188,12 +188,12 @@ describe('rankCauses — the product ranking', () => {
   })
 
   it('words the support line', () => {
-    expect(describeSupport(14, 20)).toBe('confirmed in 14 of 20 records')
-    expect(describeSupport(1, 1)).toBe('confirmed in 1 of 1 record')
-    expect(describeSupport(0, 3)).toBe('confirmed in 0 of 3 records')
-    expect(describeSupport(0, 0)).toBe('no confirmed records yet')
+    expect(describeSupport(14, 20)).toBe('found in 14 of 20 closed jobs')
+    expect(describeSupport(1, 1)).toBe('found in 1 of 1 closed job')
+    expect(describeSupport(0, 3)).toBe('found in 0 of 3 closed jobs')
+    expect(describeSupport(0, 0)).toBe('no closed jobs name a cause yet')
     const [only] = rankCauses({ causes: [cause('x', 'Cracked solder joint', 1, 3)], symptoms: [], totalRecords: 7 })
-    expect(only).toMatchObject({ support: 'confirmed in 3 of 7 records', posterior: 1 })
+    expect(only).toMatchObject({ support: 'found in 3 of 7 closed jobs', posterior: 1 })
   })
 
   it('raises a cause when the observed symptom co-occurs with it', () => {

@@ -158,5 +158,10 @@ export async function compareRevisions(id: number, otherId: number, user: User):
   if (a.proc.id !== b.proc.id) throw invalid('Both revisions must belong to the same procedure.')
   const [da, db] = await Promise.all([revisionDetail(a.rev, a.proc, user), revisionDetail(b.rev, b.proc, user)])
   const strip = ({ content: _c, rendered: _r, comments: _m, attachments: _a, labels: _l, procedure: _p, can: _k, ...s }: RevisionDetailDto): RevisionSummaryDto => s
-  return { a: strip(da), b: strip(db), ...compareContents(a.rev.content, b.rev.content) }
+  const labels = [da.labels, db.labels]
+  const names = {
+    deviceTypes: Object.fromEntries(labels.flatMap(l => (l.deviceType ? [[l.deviceType.slug, l.deviceType.name]] : []))),
+    symptoms: Object.fromEntries(labels.flatMap(l => l.symptoms.map(s => [s.slug, s.name]))),
+  }
+  return { a: strip(da), b: strip(db), ...compareContents(a.rev.content, b.rev.content, names) }
 }
