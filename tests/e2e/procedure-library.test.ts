@@ -14,13 +14,13 @@ describe('procedures library order and grouping, in Chromium', () => {
     try {
       await signIn(page, DEMO.technician, DEMO_PASSWORD)
       await openHydrated(page, '/procedures')
-      await expect.poll(() => page.locator('[data-testid^="library-group-"]').count()).toBe(0)
+      await expect.poll(() => page.locator('[data-testid^="library-section-"]').count()).toBe(0)
 
       await page.getByTestId('library-sort-title').click()
       await page.waitForURL(url => url.searchParams.get('sort') === 'title', WAIT)
       await page.getByTestId('library-group-device').click()
       await page.waitForURL(url => url.searchParams.get('group') === 'device' && url.searchParams.get('sort') === 'title', WAIT)
-      const headings = page.locator('[data-testid^="library-group-"] h2')
+      const headings = page.locator('[data-testid^="library-section-"] h2')
       await expect.poll(() => headings.count(), WAIT).toBeGreaterThan(1)
       const names = await headings.allTextContents()
       expect(names).toEqual([...names].sort(new Intl.Collator('en', { sensitivity: 'base' }).compare))
