@@ -4,8 +4,8 @@ import type { CutPoint, CutType, HalfCycleDetail, HalfCycleEvent, WaveformAnalys
 export const REFERENCE_KINDS = ['good', 'fault'] as const
 export type ReferenceKind = (typeof REFERENCE_KINDS)[number]
 export const REFERENCE_KIND_LABELS: Record<ReferenceKind, string> = {
-  good: 'What a good unit looks like',
-  fault: 'What this fault looks like',
+  good: 'Known-good trace',
+  fault: 'Fault trace',
 }
 
 const columnIndex = z.coerce.number().int().min(0).max(999)

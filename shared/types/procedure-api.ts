@@ -93,6 +93,12 @@ export interface ProcedureReadDto {
   pending: Array<{ id: number, number: number | null, state: RevisionState, author: PersonDto }>
 }
 
+/** The library's orders (`sort`; `live`: newest live revision first) and groupings (`group`). */
+export const LIBRARY_SORTS = ['live', 'title'] as const
+export type LibrarySort = (typeof LIBRARY_SORTS)[number]
+export const LIBRARY_GROUPS = ['none', 'device'] as const
+export type LibraryGroup = (typeof LIBRARY_GROUPS)[number]
+
 /** GET /api/procedures (published, active) */
 export interface ProcedureListItemDto {
   id: number

@@ -61,6 +61,7 @@ export const ROUTE_ACCESS: Record<string, Access> = {
   'POST /api/records/:id/close': 'technician',
   'POST /api/records/:id/amendments': 'technician',
   'GET /api/records/:id/diagnosis': 'technician',
+  'POST /api/records/:id/procedure': 'technician',
   'POST /api/readings/evaluate': 'technician',
   'POST /api/step-flags': 'technician',
   'POST /api/step-flags/:id/resolve': 'author',

@@ -67,7 +67,7 @@ describe('waveform captures in Chromium', () => {
     await match.waitFor()
     const row = page.locator('li', { has: match })
     expect(await row.getAttribute('data-kind')).toBe('fault')
-    expect(await row.textContent()).toContain('What this fault looks like')
+    expect(await row.textContent()).toContain('Fault trace')
     await match.click()
     await page.waitForURL(`${BASE_URL}/procedures/vr240-half-cycle-flicker`)
     await page.getByTestId('procedure-revision').waitFor()

@@ -1,6 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { DEMO, DEMO_PASSWORD } from '../helpers/api'
-import { BASE_URL, openBrowser, screenshot, signIn } from '../helpers/browser'
+import { BASE_URL, openBrowser, screenshot, signIn, waitForHydration } from '../helpers/browser'
 
 type Browser = Awaited<ReturnType<typeof openBrowser>>
 
@@ -61,6 +61,8 @@ describe('signing in as each role in Chromium', () => {
       await signIn(phone.page, DEMO.technician, DEMO_PASSWORD)
       const width = await phone.page.evaluate(() => document.documentElement.scrollWidth)
       expect(width).toBeLessThanOrEqual(360)
+      // The menu button works once the page has hydrated.
+      await waitForHydration(phone.page)
       await phone.page.getByTestId('menu-toggle').click()
       await phone.page.getByTestId('sign-out').waitFor({ state: 'visible' })
       await screenshot(phone.page, 'home-technician-phone')

@@ -1,7 +1,7 @@
 import { DataTypes, Model, type CreationOptional, type InferAttributes, type InferCreationAttributes, type Sequelize } from 'sequelize'
 import type { ReferenceKind } from '../../../shared/types/captures'
 
-/** A capture an author marked as what a good unit, or a given fault, looks like for a procedure (step or symptom). */
+/** A capture an author marked as a procedure's known-good trace or the trace of a given fault (step or symptom). */
 export class SignatureReference extends Model<InferAttributes<SignatureReference>, InferCreationAttributes<SignatureReference>> {
   declare id: CreationOptional<number>
   declare captureId: number

@@ -1,8 +1,8 @@
 import { LRUCache } from 'lru-cache'
-import { Op, type WhereOptions } from 'sequelize'
+import { Op, type Order, type WhereOptions } from 'sequelize'
 import { roleAtLeast } from '../../../shared/types/roles'
 import type { RevisionContent } from '../../../shared/types/procedure'
-import type { Paginated, ProcedureListItemDto, ProcedureReadDto } from '../../../shared/types/procedure-api'
+import type { LibraryGroup, LibrarySort, Paginated, ProcedureListItemDto, ProcedureReadDto } from '../../../shared/types/procedure-api'
 import { Attachment, DeviceType, Procedure, Revision, Symptom, User, afterModelChange, contentPart, jsonArray, useDb } from '../../db'
 import { DomainError } from '../errors'
 import { mergedSymptomSlugs } from '../vocabulary'
@@ -68,8 +68,18 @@ export async function readPublished(slug: string, user: User): Promise<Procedure
 
 type ListRow = { id: number, number: number, publishedAt: Date | string, title: string, deviceType: string, symptoms: unknown, hazards: unknown, procedure: { id: number, slug: string } }
 
-/** The published, active procedures, newest first, filtered by device type and symptom. */
-export async function listPublished(filter: { deviceType?: string, symptom?: string, page: number, pageSize: number }): Promise<Paginated<ProcedureListItemDto>> {
+/** How the library is ordered: newest live revision first, or by title; grouped by device type name or not. */
+function libraryOrder(sort: LibrarySort, group: LibraryGroup): Order {
+  const sequelize = useDb()
+  const order: Order = []
+  if (group === 'device') order.push([sequelize.literal('(SELECT d.name FROM device_types d WHERE d.slug = JSON_VALUE(`Revision`.`content`, \'$.deviceType\'))'), 'ASC'])
+  if (sort === 'title') order.push([contentPart('JSON_VALUE', '$.title'), 'ASC'])
+  order.push(['publishedAt', 'DESC'], ['id', 'DESC'])
+  return order
+}
+
+/** The published, active procedures, filtered by device type and symptom, in the order asked for. */
+export async function listPublished(filter: { deviceType?: string, symptom?: string, sort?: LibrarySort, group?: LibraryGroup, page: number, pageSize: number }): Promise<Paginated<ProcedureListItemDto>> {
   const sequelize = useDb()
   const where: WhereOptions[] = [{ state: 'published' }]
   if (filter.deviceType) where.push(sequelize.where(contentPart('JSON_VALUE', '$.deviceType'), filter.deviceType))
@@ -86,7 +96,7 @@ export async function listPublished(filter: { deviceType?: string, symptom?: str
     attributes: ['id', 'number', 'publishedAt', [contentPart('JSON_VALUE', '$.title'), 'title'], [contentPart('JSON_VALUE', '$.deviceType'), 'deviceType'], [contentPart('JSON_EXTRACT', '$.symptoms'), 'symptoms'], [contentPart('JSON_EXTRACT', '$.hazards'), 'hazards']],
     where: { [Op.and]: where },
     include: [{ model: Procedure, as: 'procedure', attributes: ['id', 'slug'], where: { status: 'active' }, required: true }],
-    order: [['publishedAt', 'DESC'], ['id', 'DESC']],
+    order: libraryOrder(filter.sort ?? 'live', filter.group ?? 'none'),
     limit: filter.pageSize,
     offset: (filter.page - 1) * filter.pageSize,
     raw: true,
