@@ -15,6 +15,7 @@ export default defineNuxtPlugin({
   setup(nuxtApp) {
     const offline = useOfflineStore(nuxtApp.$pinia as Parameters<typeof useOfflineStore>[0])
     const { user, session } = useUserSession()
+    const router = useRouter()
     const me = useState<{ id: number, name: string, email: string, role: string } | null>('benchlore-me')
 
     offline.setOnline(navigator.onLine)
@@ -36,6 +37,15 @@ export default defineNuxtPlugin({
       await offline.start(id)
       if (offline.online) void offline.sync()
     }
+
+    // A record page rendered on the server fetched its record there, out of the service worker's
+    // sight: the copy it rendered is kept, so the record opens with no connection, on the version
+    // its waiting saves build on.
+    nuxtApp.hook('page:finish', () => {
+      const id = /^\/records\/(\d+)$/.exec(router.currentRoute.value.path)?.[1]
+      const answer = id ? nuxtApp.payload.data[`record-${id}`] : undefined
+      if (answer && offline.online) void keepOfflineCopy(`/api/records/${id}`, answer, user.value?.id ?? null)
+    })
 
     watch(() => user.value?.id ?? null, id => void follow(id), { immediate: true })
     watch(() => me.value, (now) => {

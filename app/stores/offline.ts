@@ -1,5 +1,5 @@
 import { defineStore } from 'pinia'
-import { computed, ref } from 'vue'
+import { computed, ref, toRaw } from 'vue'
 import { apiErrorDetail, apiErrorMessage, apiErrorStatus } from '../utils/apiError'
 import { keepOfflineCopy } from '../utils/offlineCopy'
 import { offlineDb, type KeptConflict, type KeptRefusal, type QueuedSave } from '../utils/offlineData'
@@ -121,13 +121,19 @@ export const useOfflineStore = defineStore('offline', () => {
     if (retry) clearTimeout(retry)
     retry = null
     let sent = 0
-    while (online.value && phase.value !== 'signed-out') {
-      const next = saves.value.find(s => !blocked(s.recordId))
-      if (!next) break
-      phase.value = 'sending'
-      const outcome = await sendOne(next)
-      if (outcome === 'sent') sent++
-      else if (outcome === 'stop') break
+    try {
+      while (online.value && phase.value !== 'signed-out') {
+        const next = saves.value.find(s => !blocked(s.recordId))
+        if (!next) break
+        phase.value = 'sending'
+        const outcome = await sendOne(next)
+        if (outcome === 'sent') sent++
+        else if (outcome === 'stop') break
+      }
+    }
+    catch {
+      // The device's storage failed mid-way: what is still queued goes out at the next try.
+      phase.value = 'unreachable'
     }
     if (phase.value === 'sending') phase.value = 'idle'
     if (sent) delivered.value = sent
@@ -148,7 +154,8 @@ export const useOfflineStore = defineStore('offline', () => {
 
     async function landed(sentEntry: QueuedSave, answer: RecordDto) {
       const db = await offlineDb()
-      const rest = savesOf(sentEntry.recordId).filter(s => s.seq !== sentEntry.seq).map(s => ({ ...s, baseVersion: answer.version }))
+      // Raw copies: IndexedDB cannot store the page's reactive proxies.
+      const rest = savesOf(sentEntry.recordId).filter(s => s.seq !== sentEntry.seq).map(s => ({ ...toRaw(s), baseVersion: answer.version }))
       if (db) {
         const tx = db.transaction('saves', 'readwrite')
         await Promise.all([tx.store.delete(sentEntry.seq!), ...rest.map(s => tx.store.put(s)), tx.done])
