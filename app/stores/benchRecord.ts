@@ -115,12 +115,14 @@ export const useBenchRecordStore = defineStore('benchRecord', () => {
    */
   function saveOnLeave() {
     const r = record.value
-    if (!r || !dirty.value || conflict.value || !editable.value || autosave.busy()) return
+    if (!r || !dirty.value || conflict.value || !editable.value) return
     // No connection, or saves waiting in line: this one joins them on the phone.
     if (!offline.online || offline.mustQueue(r.id)) {
+      offline.keepOnLeave({ recordId: r.id, body: workBody(work.value), baseVersion: version.value, work: copyWork(work.value) })
       void save()
       return
     }
+    if (autosave.busy()) return
     autosave.cancelPending()
     void fetch(`/api/records/${r.id}`, {
       method: 'PATCH',

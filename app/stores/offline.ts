@@ -8,6 +8,22 @@ import type { RecordDto } from '#shared/types/records'
 /** How often a waiting queue tries again while the server does not answer (the `online` event also starts it). */
 export const SYNC_RETRY_MS = 15_000
 
+/** Where a save made as the page goes away waits for the next page (app/stores/offline.ts, keepOnLeave). */
+const LEFT_ON_LEAVE = 'benchlore-left-on-leave'
+
+/** The save this person left as a page went away, taken out of its place. */
+function takeLeftOnLeave(user: number): Omit<QueuedSave, 'seq' | 'userId' | 'queuedAt'> | null {
+  try {
+    const left = JSON.parse(localStorage.getItem(LEFT_ON_LEAVE) ?? 'null') as (QueuedSave | null)
+    if (!left || left.userId !== user) return null
+    localStorage.removeItem(LEFT_ON_LEAVE)
+    return { recordId: left.recordId, body: left.body, baseVersion: left.baseVersion, work: left.work }
+  }
+  catch {
+    return null
+  }
+}
+
 export type SyncPhase = 'idle' | 'sending' | 'unreachable' | 'signed-out'
 
 type SyncedListener = (recordId: number, record: RecordDto) => void
@@ -54,10 +70,27 @@ export const useOfflineStore = defineStore('offline', () => {
       return
     }
     saves.value = (await db.getAllFromIndex('saves', 'byUser', user)).sort((a, b) => a.seq! - b.seq!)
+    const left = takeLeftOnLeave(user)
+    if (left) await enqueue(left)
     conflicts.value = (await db.getAll('conflicts')).filter(c => c.userId === user)
     refusals.value = (await db.getAll('refusals')).filter(r => r.userId === user)
     if (phase.value === 'signed-out') phase.value = 'idle'
     ready.value = true
+  }
+
+  /**
+   * The page is going away (reload, tab closed) with typing not kept yet: written at once, since
+   * an IndexedDB write begun now may not finish before the page is gone. The next start() moves
+   * it into the queue.
+   */
+  function keepOnLeave(save: Omit<QueuedSave, 'seq' | 'userId' | 'queuedAt'>) {
+    if (userId.value === null) return
+    try {
+      localStorage.setItem(LEFT_ON_LEAVE, JSON.stringify({ ...save, userId: userId.value }))
+    }
+    catch {
+      // Storage full or refused: the save begun through IndexedDB is the only copy.
+    }
   }
 
   /** Whether a save of this record must wait in line behind earlier ones (or a choice). */
@@ -234,6 +267,6 @@ export const useOfflineStore = defineStore('offline', () => {
 
   return {
     online, userId, ready, saves, conflicts, refusals, phase, delivered, waiting,
-    start, mustQueue, enqueue, saveRecord, sync, settle, setOnline, blocked, savesOf, onSynced, onConflict,
+    start, mustQueue, enqueue, keepOnLeave, saveRecord, sync, settle, setOnline, blocked, savesOf, onSynced, onConflict,
   }
 })
