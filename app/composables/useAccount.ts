@@ -1,5 +1,7 @@
 import type { UserDto } from '#shared/types/auth'
 import { roleAtLeast, type Role } from '#shared/types/roles'
+import { useOfflineStore } from '~/stores/offline'
+import { dropOtherCaches, keepAccount } from '~/utils/offlineData'
 
 /** The signed-in person (name and e-mail from /api/me; role from the session). */
 export function useAccount() {
@@ -26,9 +28,15 @@ export function useAccount() {
   }
 
   async function signOut() {
+    const offline = useOfflineStore()
+    // Saves typed with no connection go out first; any still waiting stay on the phone for this
+    // person's next sign-in. The procedures and records kept for reading are theirs alone: dropped.
+    if (offline.waiting && offline.online) await offline.sync()
     await $fetch('/api/auth/logout', { method: 'POST' }).catch(() => undefined)
-    await clear()
+    await clear().catch(() => undefined)
     me.value = null
+    await keepAccount(null)
+    await dropOtherCaches(null)
     await navigateTo('/login')
   }
 

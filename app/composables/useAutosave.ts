@@ -114,6 +114,13 @@ export function useAutosave<Mine, Theirs extends { version: number }>(opts: Auto
     seenJson.value = bodyJson.value
   }
 
+  /** A save sent some other way (the offline queue, app/stores/offline.ts) met a newer version: both are kept. */
+  function raiseConflict(mine: Mine, theirs: Theirs) {
+    pending.stop()
+    conflict.value = { mine, theirs }
+    failure.value = ''
+  }
+
   /** Conflict: write this screen's copy over the one saved elsewhere. */
   function keepMine(): Promise<boolean> {
     const c = conflict.value
@@ -146,7 +153,7 @@ export function useAutosave<Mine, Theirs extends { version: number }>(opts: Auto
   return {
     version, saving, failure, savedAt, conflict, setAside, savedJson, seenJson,
     dirty, status,
-    save, flush, loaded, markSaved, keepMine, takeTheirs, restoreSetAside, discardSetAside,
+    save, flush, loaded, markSaved, raiseConflict, keepMine, takeTheirs, restoreSetAside, discardSetAside,
     /** Drops the save waiting for a pause in typing (the caller is about to save some other way). */
     cancelPending: () => pending.stop(),
     /** A save is on its way to the server. */

@@ -1,5 +1,5 @@
 import { defineStore } from 'pinia'
-import { computed, ref } from 'vue'
+import { computed, ref, watch } from 'vue'
 import { useAutosave } from '../composables/useAutosave'
 import {
   NO_FAULT, UNCONFIRMED, copyWork, doneByReading, emptyStepWork, emptyWork, judgeStep, judgeSteps, progressOf, workBody, workFromRecord,
@@ -7,6 +7,7 @@ import {
 } from '../utils/benchWork'
 import { reasonAbout } from '../utils/benchReasoning'
 import type { RecordDto } from '#shared/types/records'
+import { useOfflineStore } from './offline'
 
 /** How long the guided view waits after the last keystroke before it saves. */
 export const RECORD_SAVE_DELAY_MS = 900
@@ -21,6 +22,8 @@ export const RECORD_SAVE_DELAY_MS = 900
 export const useBenchRecordStore = defineStore('benchRecord', () => {
   const record = ref<RecordDto | null>(null)
   const work = ref<BenchWork>(emptyWork())
+  // Saves go through the offline store: kept on the phone while the connection is away.
+  const offline = useOfflineStore()
 
   const open = computed(() => record.value?.status === 'in_progress')
   const editable = computed(() => open.value && record.value?.can.edit === true)
@@ -33,11 +36,13 @@ export const useBenchRecordStore = defineStore('benchRecord', () => {
     snapshot: () => copyWork(work.value),
     enabled: () => editable.value,
     async send(body, version) {
-      const res = await $fetch(`/api/records/${record.value!.id}`, { method: 'PATCH', body: { version, ...(body as ReturnType<typeof workBody>) } })
+      const saved = await offline.saveRecord(record.value!.id, body as ReturnType<typeof workBody>, version, copyWork(work.value))
+      // Kept on the phone: the version stays the one these saves build on until they are sent.
+      if (!saved) return version
       // The server's copy brings its own verdicts and raised causes; the working copy stays as
       // typed, because the technician may have gone on typing while the save was in flight.
-      record.value = res.record
-      return res.record.version
+      record.value = saved
+      return saved.version
     },
     restore(mine, theirs) {
       if (theirs) record.value = theirs
@@ -45,7 +50,47 @@ export const useBenchRecordStore = defineStore('benchRecord', () => {
     },
     load,
   })
-  const { version, saving, failure, savedAt, conflict, setAside, dirty, status, save, flush, keepMine, takeTheirs, restoreSetAside, discardSetAside } = autosave
+  const { version, saving, failure, savedAt, conflict, setAside, dirty, status, save, flush, restoreSetAside, discardSetAside } = autosave
+
+  // Saves kept on the phone and sent later: the page follows the server's copy as they land,
+  // and a record saved elsewhere meanwhile shows both versions, as a stale save here would.
+  offline.onSynced((id, saved) => {
+    if (record.value?.id !== id) return
+    record.value = saved
+    version.value = saved.version
+  })
+  offline.onConflict((id, theirs) => {
+    if (record.value?.id === id) autosave.raiseConflict(copyWork(work.value), theirs)
+  })
+  // The queue is read from the device after the page has loaded its record.
+  watch(() => offline.ready, (ready) => {
+    if (ready && !dirty.value) takeUpKept()
+  })
+
+  /** Puts back what was typed on this phone and not sent yet (after a reload with no connection). */
+  function takeUpKept() {
+    const r = record.value
+    if (!r) return
+    const kept = offline.savesOf(r.id).at(-1)
+    if (kept) {
+      work.value = copyWork(kept.work as BenchWork)
+      autosave.markSaved()
+    }
+    const waiting = offline.conflicts.find(c => c.recordId === r.id)
+    if (waiting) autosave.raiseConflict(copyWork(work.value), waiting.theirs as RecordDto)
+  }
+
+  /** Conflict: this screen's copy goes over the other; the saves waiting on the phone are settled by it. */
+  async function keepMine(): Promise<boolean> {
+    if (record.value) await offline.settle(record.value.id)
+    return autosave.keepMine()
+  }
+
+  /** Conflict: go on from the server's copy; this screen's is set aside, and the waiting saves with it. */
+  async function takeTheirs() {
+    if (record.value) await offline.settle(record.value.id)
+    autosave.takeTheirs()
+  }
 
   /** The verdict of every step, as typed now. */
   const readings = computed(() => judgeSteps(guideSteps.value, work.value.steps))
@@ -105,6 +150,7 @@ export const useBenchRecordStore = defineStore('benchRecord', () => {
     // The last reading stored is the one whose change is shown after a reload.
     const read = Object.entries(next.steps ?? {}).filter(([, e]) => e.verdict && e.readAt).sort((a, b) => b[1].readAt!.localeCompare(a[1].readAt!))
     lastStep.value = read[0]?.[0] ?? null
+    if (offline.ready) takeUpKept()
   }
 
   /**
@@ -113,7 +159,14 @@ export const useBenchRecordStore = defineStore('benchRecord', () => {
    */
   function saveOnLeave() {
     const r = record.value
-    if (!r || !dirty.value || conflict.value || !editable.value || autosave.busy()) return
+    if (!r || !dirty.value || conflict.value || !editable.value) return
+    // No connection, or saves waiting in line: this one joins them on the phone.
+    if (!offline.online || offline.mustQueue(r.id)) {
+      offline.keepOnLeave({ recordId: r.id, body: workBody(work.value), baseVersion: version.value, work: copyWork(work.value) })
+      void save()
+      return
+    }
+    if (autosave.busy()) return
     autosave.cancelPending()
     void fetch(`/api/records/${r.id}`, {
       method: 'PATCH',
@@ -141,7 +194,11 @@ export const useBenchRecordStore = defineStore('benchRecord', () => {
 
   async function close(payload: Record<string, unknown>): Promise<RecordDto> {
     const r = openRecord()
-    // Readings typed just before closing must be in the record the close is judged on.
+    if (!offline.online) throw Object.assign(new Error('offline'), { data: { message: 'Closing needs a connection. What you chose is kept on this phone; close the record when the connection is back.' } })
+    // Readings typed just before closing must be in the record the close is judged on, the
+    // ones kept on the phone included.
+    if (offline.mustQueue(r.id)) await offline.sync()
+    if (offline.mustQueue(r.id)) throw Object.assign(new Error('unsaved'), { data: { message: 'Readings typed with no connection are not sent yet; close the record once they are.' } })
     if (!(await flush())) throw Object.assign(new Error('unsaved'), { data: { message: 'The latest readings are not saved yet; save them before closing.' } })
     const res = await $fetch(`/api/records/${r.id}/close`, { method: 'POST', body: payload })
     load(res.record)

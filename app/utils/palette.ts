@@ -1,5 +1,8 @@
-import type { RevisionState } from '#shared/types/procedure'
-import type { Outcome } from '#shared/types/records'
+import type { RevisionState } from '../../shared/types/procedure'
+import type { Outcome } from '../../shared/types/records'
+
+// Relative imports: nuxt.config.ts reads the palette too (the installed app's colours), outside
+// the app's path aliases.
 
 // Benchlore's own palette: warm paper, dark ink, one petrol accent for actions and focus, and
 // signal colours kept for verdicts, states and hazards. tailwind.config.ts makes these the

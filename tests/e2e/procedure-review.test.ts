@@ -275,10 +275,12 @@ describe('writing, reviewing and publishing a procedure in Chromium', () => {
     await page.getByTestId('procedure-title').waitFor(WAIT)
     expect(await page.getByTestId('procedure-title').textContent()).toContain(TITLE)
     expect(await page.getByTestId('procedure-revision').textContent()).toContain('Revision 2')
-    // Mains work: the caution at the top and again before the first step, neither dismissable.
+    // Mains work: the full caution at the top, a reminder pointing back to it before the first
+    // step, neither dismissable; the full text once per page.
     await page.getByTestId('hazard-caution').waitFor()
     expect(await page.getByTestId('hazard-caution').textContent()).toMatch(/isolating transformer/i)
-    const beforeSteps = page.locator('#steps').getByTestId('hazard-caution-compact')
+    expect(await page.getByTestId('hazard-caution').count()).toBe(1)
+    const beforeSteps = page.locator('#steps').getByTestId('hazard-reminder')
     await beforeSteps.waitFor()
     const cautionFirst = await beforeSteps.evaluate((caution) => {
       const firstStep = document.querySelector('#steps article[data-testid^="step-"]')

@@ -1,3 +1,4 @@
+import { isDeepStrictEqual } from 'node:util'
 import type { Transaction } from 'sequelize'
 import type { CloseDraft, Outcome } from '../../../shared/types/records'
 import type { User } from '../../db'
@@ -89,7 +90,9 @@ export async function patchRecord(id: number, patch: RecordPatch, actor: User) {
     const r = await findRecord(id, transaction)
     if (r.status !== 'in_progress') throw conflict('This record is closed; correct it with an amendment.', { status: r.status })
     if (!canEditRecord(actor, r)) throw forbidden('Only the record\'s technician or an editor can change it.')
-    if (r.version !== patch.version) return { stale: true as const, r }
+    // A save sent again after its answer was lost (a phone whose connection dropped mid-save)
+    // finds its own values already stored: nothing would change, so it is no conflict.
+    if (r.version !== patch.version) return { stale: !changesNothing(r, patch), r }
     if (patch.photoIds) await assertPhotosLinkable(r, patch.photoIds, actor, transaction)
     let steps = r.steps
     if (patch.steps) {
@@ -207,4 +210,16 @@ export async function amendRecord(id: number, body: { reason: string, changes: P
     await recordAudit({ actorId: actor.id, action: 'record.amended', entityType: 'record', entityId: id, before, after: changes }, transaction)
     return locked
   })
+}
+
+/** Whether every field a save names already holds the value it names. */
+function changesNothing(r: RepairRecord, patch: Parameters<typeof patchRecord>[1]): boolean {
+  const unit = patch.unit ?? {}
+  const same = (stored: unknown, sent: unknown) => sent === undefined || isDeepStrictEqual(stored, sent)
+  const stepsSame = Object.entries(patch.steps ?? {}).every(([key, fields]) => {
+    const stored = r.steps[key] as Record<string, unknown> | undefined
+    return Object.entries(fields).every(([field, value]) => same(stored?.[field], value))
+  })
+  return stepsSame && same(r.unitModel, unit.model) && same(r.unitSerial, unit.serial) && same(r.jobRef, unit.jobRef)
+    && same(r.notes, patch.notes) && same(r.symptoms, patch.symptoms) && same(r.photoIds, patch.photoIds)
 }
