@@ -103,7 +103,7 @@ describe('the bench record on the guided view', () => {
       bench.work.notes = 'typed here'
       await nextTick()
       await bench.save()
-      bench.takeTheirs()
+      await bench.takeTheirs()
       expect(bench.work.notes).toBe('from the other tab')
       expect(bench.setAside?.notes).toBe('typed here')
       expect(bench.status).toBe('saved')

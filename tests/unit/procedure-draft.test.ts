@@ -196,12 +196,14 @@ describe('autosave and stale saves', () => {
     draft.addCause()
     const i = draft.content.causes.length - 1
     const step = draft.content.steps[0]!
-    step.failPointsTo = [...(step.failPointsTo ?? []), draft.content.causes[i]!.key]
+    step.verdicts = { ...step.verdicts, low: { causes: [draft.content.causes[i]!.key] }, high: { conclude: draft.content.causes[i]!.key } }
     draft.renameCause(i, 'Gate resistor R7 open')
     expect(draft.content.causes[i]!.key).toBe('gate_resistor_r7_open')
-    expect(step.failPointsTo).toContain('gate_resistor_r7_open')
+    expect(step.verdicts.low?.causes).toEqual(['gate_resistor_r7_open'])
+    expect(step.verdicts.high?.conclude).toBe('gate_resistor_r7_open')
 
     draft.removeCause(i)
-    expect(step.failPointsTo).not.toContain('gate_resistor_r7_open')
+    expect(step.verdicts.low).toBeUndefined()
+    expect(step.verdicts.high).toBeUndefined()
   })
 })
