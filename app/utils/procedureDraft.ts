@@ -95,6 +95,7 @@ const FIELD_LABELS: Record<string, string> = {
   key: 'key', name: 'name', detail: 'detail', prior: 'how likely', title: 'title', instruction: 'instruction',
   quantity: 'what is measured', unit: 'unit', min: 'lowest good reading', max: 'highest good reading', nominal: 'nominal value',
   tolerancePct: 'tolerance', openExpected: 'open is good', failPointsTo: 'causes it points to', imageIds: 'photos',
+  expectedCut: 'cut a good capture shows',
   verdicts: 'what the reading means', in_range: 'if it reads in range', low: 'if it reads low', high: 'if it reads high', open: 'if it reads OL',
   pass: 'if it passes', fail: 'if it fails', causes: 'causes', next: 'next step', conclude: 'what it confirms', minutes: 'minutes',
   partNumber: 'part number', substitutes: 'substitutes',
@@ -315,6 +316,7 @@ export function draftOutline(c: DraftContent, changeNote: string): string {
     }
     if (step.minutes) lines.push(`  About ${step.minutes} min`)
     if (step.imageIds?.length) lines.push(`  Photos: ${step.imageIds.join(', ')}`)
+    if (step.expectedCut?.length) lines.push(`  A capture passes when its cut is: ${step.expectedCut.join(', ')}`)
   })
   c.parts.forEach((part, i) => lines.push(`Part ${i + 1}: ${part.name}${part.partNumber ? ` (${part.partNumber})` : ''}${part.substitutes.length ? ` — or ${part.substitutes.join(', ')}` : ''}`))
   if (c.fix.trim()) lines.push('Fix:', ...indented(c.fix))

@@ -430,6 +430,7 @@ const vr240HalfCycleV2: Content = {
         '',
         'Good: both half-cycles cut at the same point. Shorted diode: one half is a full half-sine. Open diode: one half is missing entirely.',
       ].join('\n'),
+      expectedCut: ['trailing_edge'],
       verdicts: { fail: { causes: ['bridge_short', 'bridge_open', 'zero_cross_sense'] } },
       minutes: 8,
     },

@@ -27,6 +27,15 @@ export type CaptureUploadFields = z.output<typeof CaptureUploadFields>
 
 export const CUT_TYPES = ['none', 'leading_edge', 'trailing_edge', 'half_missing', 'irregular'] as const satisfies readonly CutType[]
 
+/** Benchlore's names for the kinds of phase cut. */
+export const CUT_TYPE_NAMES: Record<CutType, string> = {
+  none: 'No phase cut',
+  leading_edge: 'Leading edge',
+  trailing_edge: 'Trailing edge',
+  half_missing: 'One half-cycle wrong',
+  irregular: 'Irregular',
+}
+
 export const CaptureListQuery = z.object({
   /** Only the captures the caller uploaded. */
   mine: z.enum(['1', 'true', '0', 'false']).transform(v => v === '1' || v === 'true').optional(),

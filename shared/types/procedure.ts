@@ -3,6 +3,8 @@ import { HAZARDS } from './hazards'
 import { MeasurementSpec } from './measurement'
 import { DraftStepReasoningFields, StepReasoningFields, foldFailPointsTo } from './verdicts'
 import { flowIssues } from '../utils/diagnosis/flow-validation'
+import type { CutType } from '../utils/waveform/analyse'
+import { CUT_TYPES } from './captures'
 
 export const REVISION_STATES = ['draft', 'in_review', 'published', 'superseded', 'changes_requested', 'rejected'] as const
 export type RevisionState = (typeof REVISION_STATES)[number]
@@ -16,6 +18,8 @@ export const DEFAULT_PRIOR = 0.2
 const SLUG_RULE: TextRule = [/^[a-z0-9]+(?:-[a-z0-9]+)*$/, 'must be a lowercase slug (a-z, 0-9, dashes)']
 const KEY_RULE: TextRule = [/^[a-z0-9][a-z0-9_-]*$/, 'must be a short key (a-z, 0-9, _ or -)']
 type TextRule = [pattern: RegExp, message: string]
+
+const isCutType = (s: string): s is CutType => (CUT_TYPES as readonly string[]).includes(s)
 
 const markdown = (max: number) => z.string().max(max, `must be at most ${max} characters`)
 
@@ -94,6 +98,20 @@ function revisionFields<S extends Strictness>(strictness: S) {
     /** The author's estimate of the step's minutes, until records time it. */
     minutes: f.choose(() => StepReasoningFields.minutes, () => DraftStepReasoningFields.minutes),
     imageIds: z.array(z.number().int().positive()).max(12).optional(),
+    /**
+     * The phase cuts a good unit's capture shows, on a step judged pass or fail: a capture filed on
+     * the step can then offer its verdict. Errors land on the list itself, where the form shows them.
+     */
+    expectedCut: f.choose(
+      () => z.array(z.string())
+        .min(1, 'choose at least one cut, or none at all')
+        .max(CUT_TYPES.length)
+        .refine(list => list.every(isCutType), `name only cuts Benchlore knows: ${CUT_TYPES.join(', ')}`)
+        .refine(list => new Set(list).size === list.length, 'a cut is chosen twice')
+        .transform(list => list as CutType[])
+        .optional(),
+      () => z.array(z.string().trim().max(40)).max(10).optional(),
+    ),
   }).overwrite(foldFailPointsTo)
   const part = z.object({
     name: f.needed(160),
@@ -128,6 +146,7 @@ export const RevisionContent = z
     c.steps.forEach((step, i) => {
       if (stepKeys.has(step.key)) ctx.addIssue({ code: 'custom', path: ['steps', i, 'key'], message: `step key "${step.key}" is used twice` })
       stepKeys.add(step.key)
+      if (step.measurement && step.expectedCut) ctx.addIssue({ code: 'custom', path: ['steps', i, 'expectedCut'], message: 'a step with a measurement is judged by its reading: remove the expected cut or the measurement' })
     })
     // Verdicts naming unknown causes or steps, verdicts a step cannot give, and in a flow loops and unreachable steps.
     for (const issue of flowIssues(c)) ctx.addIssue({ code: 'custom', path: issue.path, message: issue.message })

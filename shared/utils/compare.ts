@@ -2,6 +2,8 @@ import { diffArrays } from 'diff'
 import type { DraftContent, RevisionContent } from '../types/procedure'
 import type { FieldChange, ItemChange, TextDiffPart } from '../types/procedure-api'
 import { QUANTITY_LABELS } from '../types/quantities'
+import { CUT_TYPE_NAMES } from '../types/captures'
+import type { CutType } from './waveform/analyse'
 import { ESCALATE, STEP_VERDICTS, verdictCondition } from '../types/verdicts'
 import type { VerdictEntry } from '../types/verdicts'
 
@@ -218,6 +220,7 @@ export function compareContents(a: Content, b: Content, names: ComparisonNames =
   const steps = compareItems(a.steps ?? [], b.steps ?? [], s => s.key, s => s.title, s => [
     ['title', 'Title', s.title], ['instruction', 'Instruction', s.instruction ?? ''], ['measurement', 'Expected reading', measurementText(s.measurement)],
     ['minutes', 'Minutes it takes', s.minutes ? `about ${s.minutes} min` : ''], ['imageIds', 'Photos', photos(s.imageIds)],
+    ['expectedCut', 'Cut a good capture shows', (s.expectedCut ?? []).map(c => CUT_TYPE_NAMES[c as CutType] ?? c).join(' or ')],
   ])
   // What each verdict means, said as sentences after the step's other changes.
   const stepA = new Map((a.steps ?? []).map(s => [s.key, s]))
