@@ -431,6 +431,14 @@ describe('demo steps and their verdicts', () => {
       }
     }
   })
+
+  it('lets the flow\'s capture answer its first step: a working trailing-edge dimmer shows a trailing-edge cut', () => {
+    // A trailing-edge dimmer switches off part-way through each half-cycle (common practice).
+    const flow = parsed(published(procedureBySlug('vr240-half-cycle-flow'))!)
+    const capture = flow.steps.find(s => s.key === 'capture')!
+    expect(capture.measurement).toBeUndefined()
+    expect(capture.expectedCut).toEqual(['trailing_edge'])
+  })
 })
 
 describe('demo records agree with their confirmed causes', () => {
